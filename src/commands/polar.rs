@@ -1,0 +1,16 @@
+//! `polaray polar`.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+/// Options of `polaray polar`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Input file.
+    pub file: PathBuf,
+}
+
+/// Runs the command.
+pub fn run(args: Args) -> anyhow::Result<ExitCode> {
+    anyhow::bail!("{}: `polaray polar` is not built yet", args.file.display())
+}

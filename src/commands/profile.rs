@@ -1,0 +1,19 @@
+//! `polaray profile`.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+/// Options of `polaray profile`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Input file.
+    pub file: PathBuf,
+}
+
+/// Runs the command.
+pub fn run(args: Args) -> anyhow::Result<ExitCode> {
+    anyhow::bail!(
+        "{}: `polaray profile` is not built yet",
+        args.file.display()
+    )
+}

@@ -1,0 +1,1 @@
+//! PLACEHOLDER module `metrics`: filled in by its own work item.

@@ -1,0 +1,1 @@
+//! PLACEHOLDER module `profile`: filled in by its own work item.

@@ -1,0 +1,1 @@
+//! PLACEHOLDER module `receiver`: filled in by its own work item.

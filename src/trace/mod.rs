@@ -1,0 +1,1 @@
+//! PLACEHOLDER module `trace`: filled in by its own work item.
