@@ -598,6 +598,12 @@ impl Builder {
                 ));
             }
         }
+        if open && !topo.is_closed() {
+            self.warn(format!(
+                "settings.open: the model has {} open edge(s); its volume by the divergence theorem, and the mean free path and reverberation estimates built on it, are only indicative",
+                topo.bad_edges.len()
+            ));
+        }
         if open && topo.is_closed() {
             self.warn("settings.open is true but the room is closed; rays cannot leave it".into());
         }
