@@ -109,8 +109,16 @@ fn summarize(loaded: &LoadedRoom) -> RoomSummary {
         bands_hz: room.settings.bands.centres_hz().to_vec(),
         mean_absorption: (0..n).map(|b| absorption[b] / area).collect(),
         air_attenuation_per_m: estimates::air_attenuation_per_m(room).as_slice(n).to_vec(),
-        sabine_s: estimates::sabine_s(room).as_slice(n).iter().map(|&t| finite(t)).collect(),
-        eyring_s: estimates::eyring_s(room).as_slice(n).iter().map(|&t| finite(t)).collect(),
+        sabine_s: estimates::sabine_s(room)
+            .as_slice(n)
+            .iter()
+            .map(|&t| finite(t))
+            .collect(),
+        eyring_s: estimates::eyring_s(room)
+            .as_slice(n)
+            .iter()
+            .map(|&t| finite(t))
+            .collect(),
         duration_s: room
             .settings
             .duration_s
@@ -205,7 +213,11 @@ fn render_text(report: &Report) -> String {
     let _ = writeln!(w, "  mean free path  {:.3} m (4V/S)", r.mean_free_path_m);
 
     let _ = writeln!(w);
-    let _ = writeln!(w, "  {:<26}{:>12}{:>9}", "area by material", "m²", "share %");
+    let _ = writeln!(
+        w,
+        "  {:<26}{:>12}{:>9}",
+        "area by material", "m²", "share %"
+    );
     for m in &r.area_by_material_m2 {
         let _ = writeln!(
             w,
@@ -246,22 +258,43 @@ fn render_text(report: &Report) -> String {
         line
     };
     let opt = |t: &Option<f64>| t.map_or("—".to_string(), |t| format!("{t:.2}"));
-    let _ = writeln!(w, "{}", row("band, Hz", r.bands_hz.iter().map(u32::to_string).collect()));
     let _ = writeln!(
         w,
         "{}",
-        row("mean absorption", r.mean_absorption.iter().map(|a| format!("{a:.3}")).collect())
+        row("band, Hz", r.bands_hz.iter().map(u32::to_string).collect())
+    );
+    let _ = writeln!(
+        w,
+        "{}",
+        row(
+            "mean absorption",
+            r.mean_absorption
+                .iter()
+                .map(|a| format!("{a:.3}"))
+                .collect()
+        )
     );
     let _ = writeln!(
         w,
         "{}",
         row(
             "air, 1/km",
-            r.air_attenuation_per_m.iter().map(|m| format!("{:.2}", m * 1000.0)).collect()
+            r.air_attenuation_per_m
+                .iter()
+                .map(|m| format!("{:.2}", m * 1000.0))
+                .collect()
         )
     );
-    let _ = writeln!(w, "{}", row("Sabine T, s", r.sabine_s.iter().map(opt).collect()));
-    let _ = writeln!(w, "{}", row("Eyring T, s", r.eyring_s.iter().map(opt).collect()));
+    let _ = writeln!(
+        w,
+        "{}",
+        row("Sabine T, s", r.sabine_s.iter().map(opt).collect())
+    );
+    let _ = writeln!(
+        w,
+        "{}",
+        row("Eyring T, s", r.eyring_s.iter().map(opt).collect())
+    );
     let _ = writeln!(
         w,
         "  echogram length {:.3} s{}, {} rays per source",
