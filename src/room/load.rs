@@ -53,7 +53,8 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
     };
     let text = std::fs::read_to_string(path)
         .map_err(|e| fail(vec![format!("cannot read the room file: {e}")]))?;
-    let file: RoomFile = toml::from_str(&text).map_err(|e| fail(vec![e.to_string()]))?;
+    let file: RoomFile =
+        toml::from_str(&text).map_err(|e| fail(vec![e.to_string().trim_end().to_string()]))?;
     let dir = path.parent().unwrap_or(Path::new("")).to_path_buf();
 
     let mut b = Builder::default();
@@ -80,7 +81,7 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
     if let Some(mesh) = &file.mesh {
         b.mesh(mesh, &dir, &names, &mut raw);
     }
-    if raw.is_empty() {
+    if file.surfaces.is_empty() && file.shoebox.is_none() && file.mesh.is_none() {
         b.problem("the room has no surfaces: give [[surfaces]], [box] or [mesh]".into());
     }
 
