@@ -254,3 +254,30 @@ fn json_report_of_a_bad_room_lists_problems_and_fails() {
     assert_eq!(v["problems"].as_array().unwrap().len(), 3);
     assert!(String::from_utf8_lossy(&out.stderr).starts_with("Error: "));
 }
+
+#[test]
+fn open_model_facing_outward_is_rejected() {
+    rejects(
+        "tests/data/rooms/open-outward.toml",
+        &["sources[0] (S1)", "receivers[0] (R1)", "face away"],
+    );
+}
+
+#[test]
+fn edge_shared_by_three_surfaces() {
+    rejects(
+        "tests/data/rooms/overused-edge.toml",
+        &["is shared by 3 surfaces (surfaces[0], surfaces[4], surfaces[6])"],
+    );
+}
+
+#[test]
+fn receiver_outside_the_room() {
+    rejects(
+        "tests/data/rooms/receiver-outside.toml",
+        &[
+            "receivers[0] (R1)",
+            "(3.000, 2.000, 3.200) is outside the room",
+        ],
+    );
+}

@@ -99,7 +99,9 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
     // Materials nobody uses, and (scattering, diffusion) pairs.
     let mut used = vec![false; materials.len()];
     for s in &surfaces {
-        used[s.material] = true;
+        if let Some(u) = used.get_mut(s.material) {
+            *u = true;
+        }
     }
     for (m, u) in materials.iter().zip(&used) {
         if !u {
@@ -162,6 +164,9 @@ struct Builder {
     warnings: Vec<String>,
     /// Whether the geometry came out closed (every edge shared by two surfaces).
     closed: bool,
+    /// Whether some geometry was left out because of an earlier problem (then
+    /// closedness is not judged, to avoid follow-on messages).
+    incomplete: bool,
 }
 
 fn point(p: &Point) -> DVec3 {
@@ -439,6 +444,7 @@ impl Builder {
                 self.problem(format!(
                     "{label}: no material given; add {hint}, or list it in box.omit for an open model"
                 ));
+                self.incomplete = true;
                 continue;
             };
             let index = self.material_index(names, material, &label);
@@ -468,6 +474,7 @@ impl Builder {
                     "mesh.file: cannot read the OBJ file {}: {e}",
                     path.display()
                 ));
+                self.incomplete = true;
                 return;
             }
         };
@@ -484,6 +491,7 @@ impl Builder {
                         errors.len() - LIST_LIMIT
                     ));
                 }
+                self.incomplete = true;
                 return;
             }
         };
@@ -566,7 +574,7 @@ impl Builder {
         for s in &raw {
             valid &= self.check_polygon(s);
         }
-        if !valid || raw.is_empty() {
+        if !valid || raw.is_empty() || self.incomplete {
             return (Vec::new(), Vec::new());
         }
 
@@ -586,7 +594,7 @@ impl Builder {
                     ));
                 } else {
                     self.problem(format!(
-                        "room not closed: edge {ends} is shared by {} surfaces ({}); an edge must join exactly two",
+                        "edge {ends} is shared by {} surfaces ({}); an edge of a closed room joins exactly two (remove overlapping or duplicate surfaces)",
                         users.len(),
                         users.join(", ")
                     ));
