@@ -210,7 +210,7 @@ impl Builder {
         let mut out = Settings::default();
         let mut band_count = out.bands.len();
         if let Some(list) = &s.bands_hz {
-            band_count = list.len().min(MAX_BANDS);
+            band_count = list.len();
             match BandSet::new(list) {
                 Ok(set) => out.bands = set,
                 Err(e) => self.problem(format!("settings.bands_hz: {e}")),
@@ -616,11 +616,11 @@ impl Builder {
         if open && topo.is_closed() {
             self.warn("settings.open is true but the room is closed; rays cannot leave it".into());
         }
-        for piece in &topo.non_orientable {
-            let _ = piece;
-            self.problem(
-                "a closed part of the room is one-sided (its surfaces cannot all face the same side); check the vertex order of its surfaces".into(),
-            );
+        if !topo.non_orientable.is_empty() {
+            self.problem(format!(
+                "{} closed part(s) of the room are one-sided (their surfaces cannot all face the same side, like a Möbius strip); check how the surfaces meet",
+                topo.non_orientable.len()
+            ));
         }
         for d in topo.disagreements.iter().take(LIST_LIMIT) {
             self.problem(format!(
