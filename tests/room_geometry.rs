@@ -266,3 +266,18 @@ fn demo_hall_is_closed_consistent_and_large_enough() {
     }
     assert!(estimates::default_duration_s(room) < 3.0);
 }
+
+#[test]
+fn shoebox_sabine_with_air_absorption_at_1_khz() {
+    let room = load("rooms/shoebox.toml").room;
+    // ISO 9613-1:1993 at 20 °C, 50 % RH, 101.325 kPa, 1 kHz: 4.665 dB/km
+    // (reference sheet §5 check value), m = α / (10 lg e) per metre (Kuttruff §4.1).
+    let m = 4.665e-3 / (10.0 * std::f64::consts::E.log10());
+    // A = 98 · 0.04 + 48 · 0.70 + 48 · 0.40 = 56.72 m²; T = K V / (A + 4 m V)
+    // (Kuttruff, Room Acoustics, eq. 5.10 with air term).
+    let k = 24.0 * std::f64::consts::LN_10 / 343.2;
+    let expected = k * 168.0 / (56.72 + 4.0 * m * 168.0);
+    let b = room.settings.bands.index_of(1000).unwrap();
+    let t = estimates::sabine_s(&room)[b];
+    assert!((t - expected).abs() < 1e-4 * expected, "{t} vs {expected}");
+}
