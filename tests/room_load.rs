@@ -208,3 +208,55 @@ fn profile_axis_and_group_of_explicit_surfaces() {
     assert_eq!(room.surfaces[5].profile_axis, Some(DVec3::Z));
     assert_eq!(room.surfaces[0].profile_axis, None);
 }
+
+#[test]
+fn obstacle_inside_a_closed_room_is_oriented_and_excluded() {
+    let dir = tempfile::tempdir().unwrap();
+    // A 1 m cube standing free in the 4 x 3 x 2.5 m box, given with normals
+    // into the cube (wrong: they must face the room, i.e. out of the cube).
+    let c = |x: f64, y: f64, z: f64| [1.5 + x, 1.0 + y, 0.5 + z];
+    let faces = [
+        [c(0., 0., 0.), c(1., 0., 0.), c(1., 1., 0.), c(0., 1., 0.)],
+        [c(0., 0., 1.), c(0., 1., 1.), c(1., 1., 1.), c(1., 0., 1.)],
+        [c(0., 0., 0.), c(0., 1., 0.), c(0., 1., 1.), c(0., 0., 1.)],
+        [c(1., 0., 0.), c(1., 0., 1.), c(1., 1., 1.), c(1., 1., 0.)],
+        [c(0., 0., 0.), c(0., 0., 1.), c(1., 0., 1.), c(1., 0., 0.)],
+        [c(0., 1., 0.), c(1., 1., 0.), c(1., 1., 1.), c(0., 1., 1.)],
+    ];
+    let mut text = format!(
+        "{MATERIALS}\n[box]\nsize_m = [4, 3, 2.5]\nfloor = \"plaster\"\nceiling = \"panel\"\nwalls = \"plaster\"\n{PLACEMENTS}"
+    );
+    for v in faces {
+        text.push_str(&format!(
+            "[[surfaces]]\nmaterial = \"plaster\"\ngroup = \"block\"\nvertices = {v:?}\n"
+        ));
+    }
+    let loaded = load_text(dir.path(), "o.toml", &text).unwrap();
+    let room = &loaded.room;
+    // 30 m³ box less the 1 m³ block (hand computation).
+    assert!((estimates::volume_m3(room) - 29.0).abs() < 1e-9);
+    assert!(
+        loaded
+            .warnings
+            .iter()
+            .any(|w| w.contains("normals of 6 surface(s)")),
+        "{:?}",
+        loaded.warnings
+    );
+    let block_bottom = room
+        .surfaces
+        .iter()
+        .find(|s| s.label == "surfaces[0]")
+        .unwrap();
+    assert!((block_bottom.normal - DVec3::NEG_Z).length() < 1e-12);
+    // A source inside the block is outside the room.
+    let inside_block = text.replace("position = [1, 1, 1]", "position = [2, 1.5, 1]");
+    let err = load_text(dir.path(), "o2.toml", &inside_block).unwrap_err();
+    assert!(
+        err.problems
+            .iter()
+            .any(|p| p.contains("sources[0] (S1)") && p.contains("outside the room")),
+        "{:?}",
+        err.problems
+    );
+}
