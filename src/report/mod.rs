@@ -1,0 +1,1 @@
+//! Writers for trace results: `result.json`, echogram CSV files and echogram plots.
