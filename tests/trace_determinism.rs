@@ -18,7 +18,10 @@ fn room() -> Room {
         material,
         settings(&[500, 2000], true),
         DVec3::new(2.0, 1.5, 1.2),
-        &[(DVec3::new(5.0, 3.5, 1.5), None), (DVec3::new(1.0, 4.0, 1.8), Some(0.4))],
+        &[
+            (DVec3::new(5.0, 3.5, 1.5), None),
+            (DVec3::new(1.0, 4.0, 1.8), Some(0.4)),
+        ],
     );
     // A second source exercises the source-major ray indexing.
     room.sources.push(polaray::room::Source {
@@ -35,7 +38,10 @@ fn traced(threads: usize, seed: u64) -> TraceResult {
     options.rays = 3 * trace::RAYS_PER_CHUNK + 17;
     options.seed = seed;
     options.duration_s = 0.4;
-    let pool = rayon::ThreadPoolBuilder::new().num_threads(threads).build().unwrap();
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(threads)
+        .build()
+        .unwrap();
     pool.install(|| trace::run(&room, &options)).unwrap()
 }
 
