@@ -43,7 +43,7 @@ impl DetectionSphere {
         let half = (r_sq - miss_sq).sqrt();
         let enter = (t_closest - half).max(0.0);
         let leave = (t_closest + half).min(length_m);
-        (leave > enter).then(|| (0.5 * (enter + leave), leave - enter))
+        (leave > enter).then_some((0.5 * (enter + leave), leave - enter))
     }
 }
 

@@ -65,18 +65,6 @@ pub fn file_safe(name: &str) -> String {
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn file_safe_replaces_separators_and_dots_at_start() {
-        assert_eq!(file_safe("Hall A/B: v2"), "Hall_A_B__v2");
-        assert_eq!(file_safe("../x"), "_x");
-        assert_eq!(file_safe("  "), "room");
-    }
-}
-
 /// Writes `result.json`, `echograms.csv`, `echograms-lateral.csv` and one
 /// echogram chart per pair into `dir` (created if needed); returns the paths
 /// written, in that order.
@@ -112,4 +100,16 @@ pub fn write_run(
         written.push(path);
     }
     Ok(written)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn file_safe_replaces_separators_and_dots_at_start() {
+        assert_eq!(file_safe("Hall A/B: v2"), "Hall_A_B__v2");
+        assert_eq!(file_safe("../x"), "_x");
+        assert_eq!(file_safe("  "), "room");
+    }
 }

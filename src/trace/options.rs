@@ -126,9 +126,9 @@ impl TraceOptions {
             }
         }
         if let Some(rr) = self.roulette {
-            if !(rr.threshold > 0.0 && rr.threshold < 1.0)
-                || !(rr.survival > 0.0 && rr.survival <= 1.0)
-            {
+            let ok =
+                rr.threshold > 0.0 && rr.threshold < 1.0 && rr.survival > 0.0 && rr.survival <= 1.0;
+            if !ok {
                 return bad(format!(
                     "roulette threshold must lie in (0, 1) and survival in (0, 1], got {} and {}",
                     rr.threshold, rr.survival
