@@ -93,3 +93,38 @@ fn open_box_reports_lost_rays_and_accounts_for_their_energy() {
         result.warnings
     );
 }
+
+#[test]
+fn russian_roulette_leaves_the_echogram_unbiased() {
+    // Roulette keeps the expected energy (survivors carry weight / q): the
+    // echogram total with an aggressive threshold (−20 dB) must match the run
+    // without roulette within the Monte Carlo noise (common practice, no
+    // source; e.g. pbrt, §13.7). Both totals come from ~5000 rays × many
+    // crossings; the roulette run's extra noise stays under a few percent.
+    let room = shoebox(
+        DVec3::new(6.0, 5.0, 3.0),
+        uniform_material("plaster", 0.3, 1.0),
+        settings(&[1000], false),
+        DVec3::new(1.5, 1.5, 1.2),
+        &[(DVec3::new(4.5, 3.5, 1.5), Some(1.0))],
+    );
+    let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.rays = 5000;
+    options.duration_s = 0.5;
+    options.roulette = None;
+    let plain = trace::run(&room, &options).unwrap();
+    options.roulette = Some(polaray::trace::Roulette {
+        threshold: 1e-2,
+        survival: 0.5,
+    });
+    let played = trace::run(&room, &options).unwrap();
+    assert!(
+        played.stats.roulette_stopped_rays > 1000,
+        "{:?}",
+        played.stats
+    );
+    assert!(played.stats.segments < plain.stats.segments);
+    let a = plain.pair(0, 0).echogram.total()[0];
+    let b = played.pair(0, 0).echogram.total()[0];
+    assert!((b / a - 1.0).abs() < 0.05, "with roulette {b}, without {a}");
+}
