@@ -18,5 +18,6 @@ pub mod polar;
 pub mod profile;
 pub mod random;
 pub mod receiver;
+pub mod report;
 pub mod room;
 pub mod trace;

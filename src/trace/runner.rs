@@ -1,0 +1,284 @@
+//! Setting up a run, tracing the chunks in parallel and merging them in order.
+
+use std::f64::consts::PI;
+use std::time::Instant;
+
+use glam::DVec3;
+use rayon::prelude::*;
+
+use super::options::{TraceError, TraceOptions};
+use super::ray::{Scene, Tally};
+use super::result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
+use crate::accel::Bvh;
+use crate::bands::Bands;
+use crate::receiver::{default_radius_m, lateral_axis, DetectionSphere, Echogram};
+use crate::room::{estimates, Room};
+
+/// Rays per chunk: the unit of parallel work and of in-order merging. Fixed,
+/// so results do not depend on the thread count.
+pub const RAYS_PER_CHUNK: usize = 512;
+
+/// Lost-ray fraction above which a run warns.
+const LOST_WARNING_FRACTION: f64 = 0.001;
+
+/// Traces `room` with `options`; see the [module docs](super) for the method.
+pub fn run(room: &Room, options: &TraceOptions) -> Result<TraceResult, TraceError> {
+    run_with_progress(room, options, &|_| {})
+}
+
+/// As [`run`], calling `progress(rays)` after each chunk with the rays it traced
+/// (from worker threads, in any order).
+pub fn run_with_progress(
+    room: &Room,
+    options: &TraceOptions,
+    progress: &(dyn Fn(usize) + Sync),
+) -> Result<TraceResult, TraceError> {
+    let started = Instant::now();
+    options.validate()?;
+    if room.sources.is_empty() {
+        return Err(TraceError::Missing {
+            room: room.name.clone(),
+            what: "sources",
+        });
+    }
+    if room.receivers.is_empty() {
+        return Err(TraceError::Missing {
+            room: room.name.clone(),
+            what: "receivers",
+        });
+    }
+    let laws = options.law.build_for_room(room)?;
+    let bands = room.settings.bands.len();
+    let speed_m_s = room.settings.air.speed_of_sound_m_s();
+    let air_per_m = estimates::air_attenuation_per_m(room);
+    let bins = options.bins();
+
+    // Receivers: radius from the options, the room file, or the default rule.
+    let volume_m3 = estimates::volume_m3(room);
+    let fallback_radius_m = default_radius_m(volume_m3, options.rays, speed_m_s, options.bin_s);
+    let mut receivers = Vec::with_capacity(room.receivers.len());
+    for r in &room.receivers {
+        let (radius_m, radius_is_default) = match (options.receiver_radius_m, r.radius_m) {
+            (Some(x), _) | (None, Some(x)) => (x, false),
+            (None, None) => (fallback_radius_m, true),
+        };
+        if !(radius_m.is_finite() && radius_m > 0.0) {
+            return Err(TraceError::Option(format!(
+                "receiver `{}`: radius must be a positive number of metres, got {radius_m}",
+                r.name
+            )));
+        }
+        receivers.push(ReceiverInfo {
+            name: r.name.clone(),
+            position: r.position,
+            radius_m,
+            radius_is_default,
+        });
+    }
+    let sources: Vec<SourceInfo> = room
+        .sources
+        .iter()
+        .map(|s| SourceInfo {
+            name: s.name.clone(),
+            position: s.position,
+        })
+        .collect();
+
+    let bvh = Bvh::build(&room.triangles);
+    let mut warnings = Vec::new();
+
+    // Direct sound of every pair, from geometry and visibility.
+    let mut pairs = Vec::with_capacity(sources.len() * receivers.len());
+    for (si, s) in sources.iter().enumerate() {
+        for (ri, r) in receivers.iter().enumerate() {
+            let offset = r.position - s.position;
+            let distance_m = offset.length();
+            if distance_m == 0.0 {
+                return Err(TraceError::Coincident {
+                    receiver: r.name.clone(),
+                    source_name: s.name.clone(),
+                });
+            }
+            if distance_m <= r.radius_m {
+                warnings.push(format!(
+                    "receiver `{}` is {distance_m:.2} m from source `{}`, inside its own detection sphere (r = {:.2} m); reflections near the source are smeared",
+                    r.name, s.name, r.radius_m
+                ));
+            }
+            let direction = offset / distance_m;
+            let axis = lateral_axis(s.position, r.position);
+            let direct_visible = !bvh.occluded(s.position, direction, distance_m);
+            let direct_time_s = distance_m / speed_m_s;
+            let mut echogram = Echogram::new(bins, options.bin_s);
+            if direct_visible {
+                let mut fluence = Bands::ZERO;
+                for b in 0..bands {
+                    fluence[b] =
+                        (-air_per_m[b] * distance_m).exp() / (4.0 * PI * distance_m * distance_m);
+                }
+                let cos = direction.dot(axis);
+                echogram.add(direct_time_s, fluence, cos * cos);
+            }
+            pairs.push(PairEchogram {
+                source: si,
+                receiver: ri,
+                echogram,
+                direct_time_s,
+                distance_m,
+                direct_visible,
+                lateral_axis: axis,
+            });
+        }
+    }
+
+    let scene = build_scene(
+        room, options, &bvh, laws, &sources, &receivers, &pairs, speed_m_s, air_per_m,
+    );
+
+    // Trace fixed chunks in waves; merge every chunk in index order.
+    let total_rays = options.rays as u64 * sources.len() as u64;
+    let chunk_count = total_rays.div_ceil(RAYS_PER_CHUNK as u64);
+    let wave = (2 * rayon::current_num_threads()).max(1) as u64;
+    let mut tally = Tally::default();
+    let mut wave_start = 0;
+    while wave_start < chunk_count {
+        let wave_end = (wave_start + wave).min(chunk_count);
+        let done: Vec<(Vec<Echogram>, Tally)> = (wave_start..wave_end)
+            .into_par_iter()
+            .map(|c| {
+                let out = trace_chunk(&scene, c, total_rays, bins, options.bin_s);
+                let first = c * RAYS_PER_CHUNK as u64;
+                progress(((first + RAYS_PER_CHUNK as u64).min(total_rays) - first) as usize);
+                out
+            })
+            .collect();
+        for (echograms, t) in &done {
+            for (pair, e) in pairs.iter_mut().zip(echograms) {
+                pair.echogram.merge(e);
+            }
+            tally.merge(t);
+        }
+        wave_start = wave_end;
+    }
+
+    let stats = TraceStats {
+        rays: total_rays,
+        segments: tally.segments,
+        reflections: tally.reflections,
+        traced_mean_free_path_m: (tally.free_paths > 0)
+            .then(|| tally.free_path_sum_m / tally.free_paths as f64),
+        lost_rays: tally.lost_rays,
+        roulette_stopped_rays: tally.roulette_stopped_rays,
+        absorbed_rays: tally.absorbed_rays,
+        lost_energy_j: tally.lost_energy_j,
+        energy_at_end_j: tally.energy_at_end_j,
+        wall_time_s: started.elapsed().as_secs_f64(),
+    };
+    if stats.lost_fraction() > LOST_WARNING_FRACTION {
+        let what = if room.settings.open {
+            "the model is open, so this is expected, but check that the openings are where you mean them"
+        } else {
+            "the room is meant to be closed, so the mesh leaks: look for gaps between surfaces or missing faces"
+        };
+        warnings.push(format!(
+            "{} of {} rays ({:.2} %) left the room; {what}",
+            stats.lost_rays,
+            stats.rays,
+            100.0 * stats.lost_fraction()
+        ));
+    }
+
+    Ok(TraceResult {
+        bands: room.settings.bands.clone(),
+        bin_s: options.bin_s,
+        duration_s: options.duration_s,
+        speed_of_sound_m_s: speed_m_s,
+        air_attenuation_per_m: air_per_m,
+        sources,
+        receivers,
+        echograms: pairs,
+        stats,
+        warnings,
+    })
+}
+
+/// Precomputes everything the rays share.
+#[allow(clippy::too_many_arguments)]
+fn build_scene<'a>(
+    room: &Room,
+    options: &TraceOptions,
+    bvh: &'a Bvh,
+    laws: Vec<Box<dyn crate::law::ReflectionLaw>>,
+    sources: &[SourceInfo],
+    receivers: &[ReceiverInfo],
+    pairs: &[PairEchogram],
+    speed_m_s: f64,
+    air_per_m: Bands,
+) -> Scene<'a> {
+    let bands = room.settings.bands.len();
+    let normals = room
+        .triangles
+        .iter()
+        .map(|t| {
+            t.cross()
+                .try_normalize()
+                .unwrap_or(room.surfaces[t.surface as usize].normal)
+        })
+        .collect();
+    let triangle_law = room
+        .triangles
+        .iter()
+        .map(|t| room.surfaces[t.surface as usize].material as u32)
+        .collect();
+    let mut start_weight = Bands::ZERO;
+    for b in 0..bands {
+        start_weight[b] = 1.0 / options.rays as f64;
+    }
+    let air_min_per_m = air_per_m.0[..bands]
+        .iter()
+        .copied()
+        .fold(f64::INFINITY, f64::min);
+    Scene {
+        bvh,
+        normals,
+        triangle_law,
+        laws,
+        bands,
+        seed: options.seed,
+        rays_per_source: options.rays,
+        start_weight,
+        max_path_m: speed_m_s * options.duration_s,
+        speed_m_s,
+        air_per_m,
+        air_min_per_m,
+        has_air: air_per_m.0.iter().any(|&m| m != 0.0),
+        roulette: options.roulette,
+        spheres: receivers
+            .iter()
+            .map(|r| DetectionSphere::new(r.position, r.radius_m))
+            .collect(),
+        source_positions: sources.iter().map(|s| s.position).collect::<Vec<DVec3>>(),
+        lateral_axes: pairs.iter().map(|p| p.lateral_axis).collect(),
+    }
+}
+
+/// Traces chunk `chunk` into fresh echograms (one per pair, source-major).
+fn trace_chunk(
+    scene: &Scene<'_>,
+    chunk: u64,
+    total_rays: u64,
+    bins: usize,
+    bin_s: f64,
+) -> (Vec<Echogram>, Tally) {
+    let receivers = scene.spheres.len();
+    let mut echograms = vec![Echogram::new(bins, bin_s); scene.source_positions.len() * receivers];
+    let mut tally = Tally::default();
+    let first = chunk * RAYS_PER_CHUNK as u64;
+    let last = (first + RAYS_PER_CHUNK as u64).min(total_rays);
+    for index in first..last {
+        let source = (index / scene.rays_per_source as u64) as usize;
+        let mine = &mut echograms[source * receivers..(source + 1) * receivers];
+        scene.trace_ray(index, mine, &mut tally);
+    }
+    (echograms, tally)
+}
