@@ -10,7 +10,7 @@ pub fn is_prime(n: u32) -> bool {
     }
     let mut d = 2u32;
     while u64::from(d) * u64::from(d) <= u64::from(n) {
-        if n % d == 0 {
+        if n.is_multiple_of(d) {
             return false;
         }
         d += 1;
@@ -22,7 +22,7 @@ pub fn is_prime(n: u32) -> bool {
 /// mod p run through every value 1..p−1.
 #[must_use]
 pub fn is_primitive_root(g: u32, p: u32) -> bool {
-    if p < 2 || g % p == 0 {
+    if p < 2 || g.is_multiple_of(p) {
         return false;
     }
     let mut seen = vec![false; p as usize];
