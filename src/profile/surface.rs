@@ -136,7 +136,7 @@ fn well_intervals(
 /// Number of elements for an interval of `len_m`: no longer than `step_m`,
 /// at least `min_count`.
 fn element_count(len_m: f64, step_m: f64, min_count: u32) -> usize {
-    ((len_m / step_m).ceil() as usize)
+    ((len_m / step_m - 1e-9).ceil() as usize)
         .max(min_count as usize)
         .max(1)
 }
