@@ -24,6 +24,7 @@
 //!   across each well (configurable), boundaries on well and fin edges; each
 //!   element's phase progression is integrated exactly (Filon-type midpoint).
 
+pub mod bem;
 pub mod green;
 pub mod kirchhoff;
 pub mod predict;
