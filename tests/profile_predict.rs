@@ -66,7 +66,7 @@ fn flat_surfaces_have_no_correlation_scattering_against_their_reference() {
     ];
     for text in specs {
         let spec = parse_spec(&format!("{text}{GONIOMETER}"), Path::new("flat.toml")).unwrap();
-        let (_, worst) = worst_sc(&predict(&spec).polar);
+        let (_, worst) = worst_sc(&predict(&spec).unwrap().polar);
         eprintln!("{}: s_c at most {worst:e}", spec.name);
         assert!(worst < 1e-6, "{}: s_c up to {worst:e}", spec.name);
     }
@@ -74,7 +74,7 @@ fn flat_surfaces_have_no_correlation_scattering_against_their_reference() {
     // scatters at 1 kHz, where the 1.47 m sample spans 4.3 wavelengths.
     let qrd = "name = \"qrd\"\n[profile]\nkind = \"quadratic_residue\"\nprime = 7\ndesign_hz = 250.0\nwell_width_m = 0.07\nfin_width_m = 0.0\nperiods = 3\n";
     let spec = parse_spec(&format!("{qrd}{GONIOMETER}"), Path::new("qrd.toml")).unwrap();
-    let mut polar = predict(&spec).polar;
+    let mut polar = predict(&spec).unwrap().polar;
     polar.responses.retain(|r| r.band_hz == 1000.0);
     let (least, _) = worst_sc(&polar);
     eprintln!("QRD s_c at 1 kHz: at least {least:.3}");
@@ -88,7 +88,7 @@ fn large_flat_panel_reads_near_zero_db_in_the_mirror_direction() {
     // Normalization: level re the image source (ours, FORMAT.md).
     let text = "name = \"wide\"\n[profile]\nkind = \"flat\"\nwidth_m = 8.0\n[goniometer]\nsource_distance_m = 10.0\nreceiver_distance_m = 5.0\nincidence_deg = [30.0]\n[bands]\ncentres_hz = [2000.0, 4000.0]\n";
     let spec = parse_spec(text, Path::new("wide.toml")).unwrap();
-    let polar = predict(&spec).polar;
+    let polar = predict(&spec).unwrap().polar;
     for r in &polar.responses {
         let i = r.receiver_deg.iter().position(|&a| a == -30.0).unwrap();
         assert!(
@@ -105,7 +105,7 @@ fn large_flat_panel_reads_near_zero_db_in_the_mirror_direction() {
 fn grid_prediction_covers_the_hemisphere_and_warns_where_due() {
     let text = "name = \"grid\"\n[profile]\nkind = \"quadratic_residue_grid\"\nprime = 5\ndesign_hz = 1000.0\nwell_width_m = 0.06\nfin_width_m = 0.0\nperiods_x = 2\nperiods_y = 2\n[goniometer]\nsource_distance_m = 4.0\nreceiver_distance_m = 3.0\nincidence_deg = [0.0]\nreceiver_step_deg = 15.0\nazimuth_step_deg = 30.0\n[bands]\ncentres_hz = [1000.0]\nevaluation = \"centre\"\n";
     let spec = parse_spec(text, Path::new("grid.toml")).unwrap();
-    let p = predict(&spec);
+    let p = predict(&spec).unwrap();
     let r = &p.polar.responses[0];
     // Pole plus 6 rings of 12 azimuths.
     assert_eq!(r.receiver_deg.len(), 1 + 6 * 12);
@@ -134,7 +134,7 @@ fn committed_demo_treatments_match_the_current_prediction() {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-rooms/treatments");
     for name in ["flat-panel", "sinusoid-panel", "qrd7-panel"] {
         let spec = polaray::profile::load_spec(&dir.join(format!("{name}.toml"))).unwrap();
-        let now = polaray::profile::predict::rounded(&predict(&spec).polar, 7);
+        let now = polaray::profile::predict::rounded(&predict(&spec).unwrap().polar, 7);
         let text = std::fs::read_to_string(dir.join(format!("{name}.polar.toml"))).unwrap();
         let committed: PolarFile = toml::from_str(&text).unwrap();
         assert_eq!(committed.responses.len(), 30, "{name}");
@@ -167,4 +167,21 @@ fn committed_demo_treatments_match_the_current_prediction() {
             }
         }
     }
+}
+
+#[test]
+fn an_unchecked_bad_spec_is_refused_not_panicked_on() {
+    let mut spec = parse_spec(
+        "name = \"r\"\n[profile]\nkind = \"primitive_root\"\nprime = 7\ndesign_hz = 500.0\nwell_width_m = 0.05\nfin_width_m = 0.0\nperiods = 1\n",
+        Path::new("r.toml"),
+    )
+    .unwrap();
+    if let polaray::profile::spec::ProfileShape::PrimitiveRoot { prime, .. } = &mut spec.profile {
+        *prime = 8;
+    }
+    let e = predict(&spec).unwrap_err();
+    assert!(
+        e.problems.iter().any(|p| p.contains("profile.prime = 8")),
+        "{e}"
+    );
 }

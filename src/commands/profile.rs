@@ -26,7 +26,7 @@ pub struct Args {
 /// Runs the command.
 pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     let spec = load_spec(&args.file)?;
-    let prediction = predict(&spec);
+    let prediction = predict(&spec).with_context(|| args.file.display().to_string())?;
     let text = toml::to_string(&rounded(&prediction.polar, 7))
         .with_context(|| format!("{}: cannot serialize the polar data", args.out.display()))?;
     polaray::output::write_atomic(&args.out, text.as_bytes())

@@ -33,6 +33,6 @@ pub mod spec;
 pub mod surface;
 pub mod warnings;
 
-pub use predict::{predict, Prediction};
+pub use predict::{predict, PredictError, Prediction};
 pub use spec::{load_spec, parse_spec, ProfileSpec, SpecError};
 pub use warnings::ProfileWarning;

@@ -146,10 +146,22 @@ pub fn rounded(polar: &PolarFile, significant: i32) -> PolarFile {
     out
 }
 
-/// Predicts the polar responses a specification asks for. The spec must have
-/// passed [`ProfileSpec::problems`] (as [`super::load_spec`] ensures).
-#[must_use]
-pub fn predict(spec: &ProfileSpec) -> Prediction {
+/// A specification given to [`predict`] that fails its own checks (specs
+/// from [`super::load_spec`] never do).
+#[derive(Debug, thiserror::Error, PartialEq)]
+#[error("the profile specification is invalid: {}", .problems.join("; "))]
+pub struct PredictError {
+    /// Every problem, each naming its field.
+    pub problems: Vec<String>,
+}
+
+/// Predicts the polar responses a specification asks for, after checking it
+/// with [`ProfileSpec::problems`].
+pub fn predict(spec: &ProfileSpec) -> Result<Prediction, PredictError> {
+    let problems = spec.problems();
+    if !problems.is_empty() {
+        return Err(PredictError { problems });
+    }
     let gon = &spec.goniometer;
     let c = gon.sound_speed_m_s;
     let grid = spec.profile.is_grid();
@@ -285,11 +297,11 @@ pub fn predict(spec: &ProfileSpec) -> Prediction {
         },
         responses,
     };
-    Prediction {
+    Ok(Prediction {
         warnings: find_warnings(spec, &receiver_deg),
         polar,
         elements_per_band,
-    }
+    })
 }
 
 /// Complex pressures (profile, reference) at every receiver for one
