@@ -49,24 +49,58 @@ impl LawKind {
         }
     }
 
-    /// The law of one material over the first `bands` bands.
+    /// The law of one material serving the band indices in `active` (other
+    /// bands get weight 0).
     pub fn build(
         self,
         material: &Material,
-        bands: usize,
+        active: &[usize],
     ) -> Result<Box<dyn ReflectionLaw>, LawError> {
         match self {
-            Self::Split => Ok(Box::new(SplitLaw::new(material, bands))),
+            Self::Split => Ok(Box::new(SplitLaw::for_bands(material, active))),
         }
     }
 
-    /// One law per material of `room`, in the order of [`Room::materials`].
-    pub fn build_for_room(self, room: &Room) -> Result<Vec<Box<dyn ReflectionLaw>>, LawError> {
-        let bands = room.settings.bands.len();
+    /// One law per material of `room` for the bands in `active`, in the order
+    /// of [`Room::materials`].
+    pub fn build_for_room(
+        self,
+        room: &Room,
+        active: &[usize],
+    ) -> Result<Vec<Box<dyn ReflectionLaw>>, LawError> {
         room.materials
             .iter()
-            .map(|m| self.build(m, bands))
+            .map(|m| self.build(m, active))
             .collect()
+    }
+
+    /// Groups of band indices that can share one ray: bands whose direction
+    /// choice is the same in every material. A law's lobe choice depends on
+    /// the data listed here; absorption never matters, since it scales each
+    /// band's weight exactly. One tracing pass runs per group, so a room whose
+    /// coefficients are equal in all bands costs one pass, and a room whose
+    /// scattering differs in every band costs one pass per band but never
+    /// suffers the compounding weight noise of sharing rays across unequal bands.
+    #[must_use]
+    pub fn band_groups(self, room: &Room) -> Vec<Vec<usize>> {
+        let bands = room.settings.bands.len();
+        let key = |b: usize| -> Vec<u64> {
+            room.materials
+                .iter()
+                .map(|m| match self {
+                    Self::Split => m.scattering[b].to_bits(),
+                })
+                .collect()
+        };
+        let mut groups: Vec<(Vec<u64>, Vec<usize>)> = Vec::new();
+        for b in 0..bands {
+            let k = key(b);
+            match groups.iter_mut().find(|(gk, _)| *gk == k) {
+                Some((_, g)) => g.push(b),
+                None => groups.push((k, vec![b])),
+            }
+        }
+        groups.into_iter().map(|(_, g)| g).collect()
     }
 }
 

@@ -13,10 +13,14 @@ use crate::room::Material;
 
 /// Lambert split with per-band scattering coefficients.
 ///
-/// All bands travel on one ray. The lobe is chosen with probability
-/// P(mirror) = mean over bands of (1 − s_b), and each band's weight is its own
-/// lobe share divided by that probability, so every band stays unbiased even
-/// when the s_b differ (one pass instead of one pass per band).
+/// The bands a law instance serves travel on one ray. The lobe is chosen with
+/// probability P(mirror) = mean over those bands of (1 − s_b), and each band's
+/// weight is its own lobe share divided by that probability, so every band
+/// stays unbiased even when the s_b differ. Unequal s_b make the weights
+/// fluctuate, and over many reflections that noise compounds (the mean square
+/// weight grows by a factor per reflection), so the tracer builds one instance
+/// per group of bands whose scattering coefficients agree in every material
+/// ([`crate::law::LawKind::band_groups`]); within a group the weights are exactly 1 − α.
 #[derive(Clone, Debug)]
 pub struct SplitLaw {
     reflectance: Bands,
@@ -28,16 +32,24 @@ impl SplitLaw {
     /// The law for `material` over the first `bands` bands.
     #[must_use]
     pub fn new(material: &Material, bands: usize) -> Self {
+        let all: Vec<usize> = (0..bands).collect();
+        Self::for_bands(material, &all)
+    }
+
+    /// The law for `material` serving only the band indices in `active`; every
+    /// other band gets weight 0.
+    #[must_use]
+    pub fn for_bands(material: &Material, active: &[usize]) -> Self {
         let mut reflectance = Bands::ZERO;
         let mut scattering = Bands::ZERO;
-        for b in 0..bands {
+        for &b in active {
             reflectance[b] = 1.0 - material.absorption[b];
             scattering[b] = material.scattering[b];
         }
-        let mirror_probability = if bands == 0 {
+        let mirror_probability = if active.is_empty() {
             1.0
         } else {
-            (0..bands).map(|b| 1.0 - scattering[b]).sum::<f64>() / bands as f64
+            active.iter().map(|&b| 1.0 - scattering[b]).sum::<f64>() / active.len() as f64
         };
         Self {
             reflectance,

@@ -84,9 +84,11 @@ pub struct SettingsReport {
 /// Stats section.
 #[derive(Debug, Serialize)]
 pub struct StatsReport {
-    /// Rays over all sources.
+    /// Rays per pass over all sources (every band gets this many).
     pub rays: u64,
-    /// Segments traced.
+    /// Tracing passes: one per group of bands that share rays.
+    pub passes: usize,
+    /// Segments traced (all passes).
     pub segments: u64,
     /// Wall reflections.
     pub reflections: u64,
@@ -237,6 +239,7 @@ impl RunReport {
             },
             stats: StatsReport {
                 rays: result.stats.rays,
+                passes: result.stats.passes,
                 segments: result.stats.segments,
                 reflections: result.stats.reflections,
                 traced_mean_free_path_m: result.stats.traced_mean_free_path_m,

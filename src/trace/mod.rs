@@ -11,14 +11,18 @@
 //!   [`Frame`](crate::geometry::Frame) (the only world↔local conversion), and
 //!   the material's law draws the outgoing direction; its per-band weight holds
 //!   the 1 − α factor.
-//! - **All bands on one ray.** When the scattering coefficient differs from
-//!   band to band, the law still picks one lobe for the whole ray, with a
-//!   probability shared by all bands, and gives each band the weight
-//!   (its own lobe share) / (probability of that lobe). The expected energy of
-//!   every band leaving by each lobe is then exactly its own (1 − α)(1 − s) or
-//!   (1 − α)s, so every band is unbiased while the geometry is traced once
-//!   instead of once per band (see [`SplitLaw`](crate::law::SplitLaw)). The
-//!   price is some extra variance in bands whose s is far from the mean.
+//! - **Bands share rays only when their lobe choice agrees.** A law picks one
+//!   outgoing direction for all the bands a ray carries. Where the scattering
+//!   coefficient differs between bands, sharing a ray would need per-band
+//!   weights (own lobe share ÷ shared lobe probability): unbiased, but the mean
+//!   square weight grows by a factor at every reflection, and over the fifty or
+//!   so reflections of a 1 s decay that noise compounds beyond use. So the
+//!   tracer runs one pass per group of bands whose law data agree in every
+//!   material ([`LawKind::band_groups`](crate::law::LawKind::band_groups)):
+//!   one pass when all bands agree, at most one per band. Within a pass each
+//!   band's weight is exactly 1 − α per reflection. Ray i uses the same
+//!   stream in every pass (common random numbers across bands), so the cost is
+//!   the number of passes and the noise per band is that of a single-band run.
 //! - **Air absorption** (ISO 9613-1) acts along every segment as e^(−m·len).
 //!   It depends only on the total path length, so a ray carries its wall
 //!   weights and its path length and the factor e^(−m·L) is applied where an
@@ -33,7 +37,7 @@
 //!   there only after their first reflection; the direct sound is added
 //!   deterministically from geometry and visibility, e^(−m d) / (4π d²) at
 //!   t = d / c, so it is neither double counted nor noisy.
-//! - **Determinism.** Ray i (over all sources, source-major) draws only from
+//! - **Determinism.** Ray i (over all sources, source-major) draws, in every pass, only from
 //!   `Stream::new(seed, i)`. Rays are traced in fixed chunks of
 //!   [`RAYS_PER_CHUNK`]; each chunk fills its own echograms and statistics,
 //!   which are added in chunk order, so any thread count gives bit-identical results.

@@ -49,8 +49,11 @@ pub struct PairEchogram {
 /// Counters and sums of a run.
 #[derive(Clone, Debug, Default, PartialEq, serde::Serialize)]
 pub struct TraceStats {
-    /// Rays traced over all sources.
+    /// Rays per pass over all sources.
     pub rays: u64,
+    /// Tracing passes, one per group of bands that can share rays
+    /// ([`crate::law::LawKind::band_groups`]); every band gets `rays` rays.
+    pub passes: usize,
     /// Segments traced (closest-hit queries that moved a ray).
     pub segments: u64,
     /// Wall reflections.
@@ -80,7 +83,7 @@ impl TraceStats {
         if self.rays == 0 {
             0.0
         } else {
-            self.lost_rays as f64 / self.rays as f64
+            self.lost_rays as f64 / (self.rays as f64 * self.passes.max(1) as f64)
         }
     }
 }

@@ -47,7 +47,7 @@ pub fn run_with_progress(
             what: "receivers",
         });
     }
-    let laws = options.law.build_for_room(room)?;
+    let groups = options.law.band_groups(room);
     let bands = room.settings.bands.len();
     let speed_m_s = room.settings.air.speed_of_sound_m_s();
     let air_per_m = estimates::air_attenuation_per_m(room);
@@ -131,38 +131,29 @@ pub fn run_with_progress(
         }
     }
 
-    let scene = build_scene(
-        room, options, &bvh, laws, &sources, &receivers, &pairs, speed_m_s, air_per_m,
-    );
-
-    // Trace fixed chunks in waves; merge every chunk in index order.
+    // One pass per band group (see `LawKind::band_groups`); ray i uses the
+    // same stream in every pass (common random numbers across bands).
     let total_rays = options.rays as u64 * sources.len() as u64;
-    let chunk_count = total_rays.div_ceil(RAYS_PER_CHUNK as u64);
-    let wave = (2 * rayon::current_num_threads()).max(1) as u64;
     let mut tally = Tally::default();
-    let mut wave_start = 0;
-    while wave_start < chunk_count {
-        let wave_end = (wave_start + wave).min(chunk_count);
-        let done: Vec<(Vec<Echogram>, Tally)> = (wave_start..wave_end)
-            .into_par_iter()
-            .map(|c| {
-                let out = trace_chunk(&scene, c, total_rays, bins, options.bin_s);
-                let first = c * RAYS_PER_CHUNK as u64;
-                progress(((first + RAYS_PER_CHUNK as u64).min(total_rays) - first) as usize);
-                out
-            })
-            .collect();
-        for (echograms, t) in &done {
-            for (pair, e) in pairs.iter_mut().zip(echograms) {
-                pair.echogram.merge(e);
-            }
-            tally.merge(t);
-        }
-        wave_start = wave_end;
+    for group in &groups {
+        let laws = options.law.build_for_room(room, group)?;
+        let scene = build_scene(
+            room, options, &bvh, laws, group, &sources, &receivers, &pairs, speed_m_s, air_per_m,
+        );
+        trace_pass(
+            &scene,
+            &mut pairs,
+            &mut tally,
+            total_rays,
+            bins,
+            options.bin_s,
+            progress,
+        );
     }
 
     let stats = TraceStats {
         rays: total_rays,
+        passes: groups.len(),
         segments: tally.segments,
         reflections: tally.reflections,
         traced_mean_free_path_m: (tally.free_paths > 0)
@@ -202,13 +193,49 @@ pub fn run_with_progress(
     })
 }
 
-/// Precomputes everything the rays share.
+/// Traces every ray of one pass in fixed chunks, in waves, merging every
+/// chunk in index order.
+fn trace_pass(
+    scene: &Scene<'_>,
+    pairs: &mut [PairEchogram],
+    tally: &mut Tally,
+    total_rays: u64,
+    bins: usize,
+    bin_s: f64,
+    progress: &(dyn Fn(usize) + Sync),
+) {
+    let chunk_count = total_rays.div_ceil(RAYS_PER_CHUNK as u64);
+    let wave = (2 * rayon::current_num_threads()).max(1) as u64;
+    let mut wave_start = 0;
+    while wave_start < chunk_count {
+        let wave_end = (wave_start + wave).min(chunk_count);
+        let done: Vec<(Vec<Echogram>, Tally)> = (wave_start..wave_end)
+            .into_par_iter()
+            .map(|c| {
+                let out = trace_chunk(scene, c, total_rays, bins, bin_s);
+                let first = c * RAYS_PER_CHUNK as u64;
+                progress(((first + RAYS_PER_CHUNK as u64).min(total_rays) - first) as usize);
+                out
+            })
+            .collect();
+        for (echograms, t) in &done {
+            for (pair, e) in pairs.iter_mut().zip(echograms) {
+                pair.echogram.merge(e);
+            }
+            tally.merge(t);
+        }
+        wave_start = wave_end;
+    }
+}
+
+/// Precomputes everything the rays of one pass share.
 #[allow(clippy::too_many_arguments)]
 fn build_scene<'a>(
     room: &Room,
     options: &TraceOptions,
     bvh: &'a Bvh,
     laws: Vec<Box<dyn crate::law::ReflectionLaw>>,
+    group: &[usize],
     sources: &[SourceInfo],
     receivers: &[ReceiverInfo],
     pairs: &[PairEchogram],
@@ -231,7 +258,7 @@ fn build_scene<'a>(
         .map(|t| room.surfaces[t.surface as usize].material as u32)
         .collect();
     let mut start_weight = Bands::ZERO;
-    for b in 0..bands {
+    for &b in group {
         start_weight[b] = 1.0 / options.rays as f64;
     }
     let air_min_per_m = air_per_m.0[..bands]
