@@ -60,7 +60,9 @@ fn bad_band_list_is_refused() {
         .args(["analyze", "x.wav", "--bands", "1000,1250"])
         .assert()
         .failure()
-        .stderr(predicate::str::contains("1250 Hz is not an octave-band centre"));
+        .stderr(predicate::str::contains(
+            "1250 Hz is not an octave-band centre",
+        ));
 }
 
 #[test]
@@ -75,6 +77,7 @@ fn good_file_gives_table_json_and_chart() {
         band_rms: 0.05,
         noise_db: Some(-60.0),
         seed: 7,
+        carrier: polaray::metrics::synthetic::Carrier::FlatMultisine,
     };
     let dir = tempfile::tempdir().unwrap();
     let wav = dir.path().join("room.wav");
@@ -97,7 +100,17 @@ fn good_file_gives_table_json_and_chart() {
     assert!(v["file"].as_str().unwrap().ends_with("room.wav"));
     let bands = v["bands"].as_array().unwrap();
     assert_eq!(bands.len(), 2);
-    for key in ["band_hz", "EDT_s", "T20_s", "T30_s", "C50_db", "C80_db", "D50", "Ts_s", "noise_floor_db"] {
+    for key in [
+        "band_hz",
+        "EDT_s",
+        "T20_s",
+        "T30_s",
+        "C50_db",
+        "C80_db",
+        "D50",
+        "Ts_s",
+        "noise_floor_db",
+    ] {
         assert!(bands[0].get(key).is_some(), "missing {key}");
     }
     // 16-bit quantisation and −60 dB noise: T30 of the 0.8 s decay within 5 % (task tolerance).

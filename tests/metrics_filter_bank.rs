@@ -41,11 +41,17 @@ fn each_band_passes_its_centre_and_rejects_its_neighbours() {
             // Measured sine agrees with the designed response.
             assert!((att - f.zero_phase_attenuation_db(fnb)).abs() < 0.2);
         }
-        for ratio in [OCTAVE_RATIO * OCTAVE_RATIO, 1.0 / (OCTAVE_RATIO * OCTAVE_RATIO)] {
+        for ratio in [
+            OCTAVE_RATIO * OCTAVE_RATIO,
+            1.0 / (OCTAVE_RATIO * OCTAVE_RATIO),
+        ] {
             let f2 = fm * ratio;
             if f2 < 0.45 * FS {
                 // IEC 61260-1 class 1 at Ω = G^(±2): ≥ 42.5 dB (from memory).
-                assert!(f.zero_phase_attenuation_db(f2) >= 42.5, "{hz} Hz at {f2:.0} Hz");
+                assert!(
+                    f.zero_phase_attenuation_db(f2) >= 42.5,
+                    "{hz} Hz at {f2:.0} Hz"
+                );
             }
         }
     }

@@ -14,7 +14,12 @@ fn exponential(t60_s: f64, bin_s: f64, onset_s: f64, duration_s: f64) -> Vec<f64
         .collect()
 }
 
-fn band<'a>(energy: &'a [f64], lateral: Option<&'a [f64]>, bin_s: f64, onset_s: f64) -> EchogramBand<'a> {
+fn band<'a>(
+    energy: &'a [f64],
+    lateral: Option<&'a [f64]>,
+    bin_s: f64,
+    onset_s: f64,
+) -> EchogramBand<'a> {
     EchogramBand {
         band_hz: 1000,
         energy,
@@ -46,10 +51,26 @@ fn pure_exponential_decays_match_closed_forms() {
         let c50 = 10.0 * (10f64.powf(0.3 / t60) - 1.0).log10();
         let d50 = 1.0 - 10f64.powf(-0.3 / t60);
         let ts = t60 / (6.0 * std::f64::consts::LN_10);
-        assert!((p.c80_db.unwrap() - c80).abs() < 0.01, "C80 {} vs {c80}", p.c80_db.unwrap());
-        assert!((p.c50_db.unwrap() - c50).abs() < 0.01, "C50 {} vs {c50}", p.c50_db.unwrap());
-        assert!((p.d50.unwrap() - d50).abs() < 1e-3, "D50 {} vs {d50}", p.d50.unwrap());
-        assert!((p.ts_s.unwrap() - ts).abs() < 2e-4, "Ts {} vs {ts}", p.ts_s.unwrap());
+        assert!(
+            (p.c80_db.unwrap() - c80).abs() < 0.01,
+            "C80 {} vs {c80}",
+            p.c80_db.unwrap()
+        );
+        assert!(
+            (p.c50_db.unwrap() - c50).abs() < 0.01,
+            "C50 {} vs {c50}",
+            p.c50_db.unwrap()
+        );
+        assert!(
+            (p.d50.unwrap() - d50).abs() < 1e-3,
+            "D50 {} vs {d50}",
+            p.d50.unwrap()
+        );
+        assert!(
+            (p.ts_s.unwrap() - ts).abs() < 2e-4,
+            "Ts {} vs {ts}",
+            p.ts_s.unwrap()
+        );
         if t60 == 1.0 {
             // Reference sheet §4 check values for T = 1 s.
             assert!((p.c80_db.unwrap() - 3.053).abs() < 0.005);
@@ -101,7 +122,11 @@ fn strength_follows_the_inverse_square_law() {
     assert!(p.g_db.unwrap().abs() < 1e-9, "G {}", p.g_db.unwrap());
     e[3] = 1.0 / (4.0 * std::f64::consts::PI * 25.0);
     let p = histogram_parameters(&band(&e, None, 0.001, 0.003));
-    assert!((p.g_db.unwrap() - 6.0206).abs() < 1e-3, "G {}", p.g_db.unwrap());
+    assert!(
+        (p.g_db.unwrap() - 6.0206).abs() < 1e-3,
+        "G {}",
+        p.g_db.unwrap()
+    );
 }
 
 #[test]
@@ -113,7 +138,11 @@ fn lateral_fraction_limits() {
     let e = exponential(t60, 0.001, 0.0, 1.5);
     let p = histogram_parameters(&band(&e, Some(&e), 0.001, 0.0));
     let expected = ((-k * 0.005).exp() - (-k * 0.080).exp()) / (1.0 - (-k * 0.080).exp());
-    assert!((p.jlf.unwrap() - expected).abs() < 1e-9, "{} vs {expected}", p.jlf.unwrap());
+    assert!(
+        (p.jlf.unwrap() - expected).abs() < 1e-9,
+        "{} vs {expected}",
+        p.jlf.unwrap()
+    );
     let none = vec![0.0; e.len()];
     let p = histogram_parameters(&band(&e, Some(&none), 0.001, 0.0));
     assert_eq!(p.jlf, Some(0.0));
@@ -126,8 +155,18 @@ fn lateral_fraction_limits() {
 fn averages_use_the_iso_bands() {
     // ISO 3382-1:2009 Annex A, Table A.1: EDT, C80, D50, Ts and G over 500 and
     // 1000 Hz; J_LF over 125–1000 Hz.
-    let times = [(125, 1.6), (250, 1.4), (500, 1.2), (1000, 1.0), (2000, 0.9), (4000, 0.7)];
-    let series: Vec<Vec<f64>> = times.iter().map(|&(_, t)| exponential(t, 0.001, 0.0, 1.3 * t)).collect();
+    let times = [
+        (125, 1.6),
+        (250, 1.4),
+        (500, 1.2),
+        (1000, 1.0),
+        (2000, 0.9),
+        (4000, 0.7),
+    ];
+    let series: Vec<Vec<f64>> = times
+        .iter()
+        .map(|&(_, t)| exponential(t, 0.001, 0.0, 1.3 * t))
+        .collect();
     let mut lateral: Vec<Vec<f64>> = series.clone();
     for (i, l) in lateral.iter_mut().enumerate() {
         l.iter_mut().for_each(|v| *v *= 0.1 * (i + 1) as f64);
@@ -165,5 +204,7 @@ fn jnd_table_has_sources() {
     assert_eq!(jnd_of("C80_db").unwrap().value, 1.0);
     assert_eq!(jnd_of("Ts_s").unwrap().value, 0.010);
     assert!((jnd_of("EDT_s").unwrap().in_jnds(2.0, 2.2) - 2.0).abs() < 1e-12);
-    assert!(polaray::metrics::JND_TABLE.iter().all(|j| !j.source.is_empty()));
+    assert!(polaray::metrics::JND_TABLE
+        .iter()
+        .all(|j| !j.source.is_empty()));
 }

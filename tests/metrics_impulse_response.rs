@@ -2,10 +2,17 @@
 //! the full measured-response path: WAV file → reader → onset → octave filters →
 //! noise floor (Lundeby et al., Acustica 81 (1995)) → decay fits.
 
-use polaray::metrics::synthetic::SyntheticResponse;
+use polaray::metrics::synthetic::{Carrier, SyntheticResponse};
 use polaray::metrics::{analyse_impulse_response, read_wav};
 
-const BANDS: [(u32, f64); 6] = [(125, 1.6), (250, 1.4), (500, 1.2), (1000, 1.0), (2000, 0.9), (4000, 0.7)];
+const BANDS: [(u32, f64); 6] = [
+    (125, 1.6),
+    (250, 1.4),
+    (500, 1.2),
+    (1000, 1.0),
+    (2000, 0.9),
+    (4000, 0.7),
+];
 
 fn recipe(noise_db: Option<f64>) -> SyntheticResponse {
     SyntheticResponse {
@@ -17,6 +24,7 @@ fn recipe(noise_db: Option<f64>) -> SyntheticResponse {
         band_rms: 0.05,
         noise_db,
         seed: 20_261_202,
+        carrier: Carrier::FlatMultisine,
     }
 }
 
@@ -51,7 +59,10 @@ fn clean_synthetic_response_returns_its_reverberation_times() {
     for (b, &(hz, t60)) in a.bands.iter().zip(&BANDS) {
         let p = &b.parameters;
         let (edt, t20, t30) = (p.edt_s.unwrap(), p.t20_s.unwrap(), p.t30_s.unwrap());
-        eprintln!("{hz} Hz: T {t60} EDT {edt:.3} T20 {t20:.3} T30 {t30:.3} noise {:?}", b.noise_floor_db);
+        eprintln!(
+            "{hz} Hz: T {t60} EDT {edt:.3} T20 {t20:.3} T30 {t30:.3} noise {:?}",
+            b.noise_floor_db
+        );
         // Tolerances of the task (T20, T30 within 3 %, EDT within 5 %).
         assert!((t20 / t60 - 1.0).abs() < 0.03, "{hz} Hz T20 {t20} vs {t60}");
         assert!((t30 / t60 - 1.0).abs() < 0.03, "{hz} Hz T30 {t30} vs {t60}");
@@ -65,7 +76,9 @@ fn noise_floor_45_db_down_is_found_and_compensated() {
     let a = analyse(Some(-45.0));
     for (b, &(hz, t60)) in a.bands.iter().zip(&BANDS) {
         let p = &b.parameters;
-        let t30 = p.t30_s.unwrap_or_else(|| panic!("{hz} Hz: {:?}", p.undefined));
+        let t30 = p
+            .t30_s
+            .unwrap_or_else(|| panic!("{hz} Hz: {:?}", p.undefined));
         let nf = b.noise_floor_db.unwrap();
         eprintln!(
             "{hz} Hz: T {t60} T30 {t30:.3} T20 {:?} noise {nf:.1} dB floor {:?} status {:?}",

@@ -77,7 +77,10 @@ fn band_json<'a>(b: &'a MeasuredBand, onset_s: f64, fs: f64) -> BandJson<'a> {
         ts_s: p.ts_s,
         noise_floor_db: b.noise_floor_db,
         floor_db: p.floor_db,
-        crossing_s: b.noise.as_ref().map(|n| onset_s + n.crossing_index as f64 / fs),
+        crossing_s: b
+            .noise
+            .as_ref()
+            .map(|n| onset_s + n.crossing_index as f64 / fs),
         curvature_percent: p.curvature_percent,
         undefined: &p.undefined,
         warnings: &p.warnings,
@@ -86,16 +89,23 @@ fn band_json<'a>(b: &'a MeasuredBand, onset_s: f64, fs: f64) -> BandJson<'a> {
 }
 
 fn cell(v: Option<f64>, scale: f64, decimals: usize) -> String {
-    v.map_or_else(|| "—".to_string(), |x| format!("{:.*}", decimals, x * scale))
+    v.map_or_else(
+        || "—".to_string(),
+        |x| format!("{:.*}", decimals, x * scale),
+    )
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> anyhow::Result<ExitCode> {
-    let bands_hz = args.bands.clone().unwrap_or_else(|| DEFAULT_BANDS_HZ.to_vec());
+    let bands_hz = args
+        .bands
+        .clone()
+        .unwrap_or_else(|| DEFAULT_BANDS_HZ.to_vec());
     let set = BandSet::new(&bands_hz).with_context(|| format!("--bands {bands_hz:?}"))?;
     let ir = metrics::read_wav(&args.file)?;
-    let analysis = metrics::analyse_impulse_response(&ir.samples, ir.sample_rate_hz, set.centres_hz())
-        .with_context(|| format!("{}", args.file.display()))?;
+    let analysis =
+        metrics::analyse_impulse_response(&ir.samples, ir.sample_rate_hz, set.centres_hz())
+            .with_context(|| format!("{}", args.file.display()))?;
 
     // Table.
     let mut text = String::new();
@@ -105,7 +115,11 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         args.file.display(),
         ir.sample_rate_hz,
         ir.samples.len() as f64 / ir.sample_rate_hz,
-        if ir.channels > 1 { format!(", first of {} channels", ir.channels) } else { String::new() },
+        if ir.channels > 1 {
+            format!(", first of {} channels", ir.channels)
+        } else {
+            String::new()
+        },
         analysis.onset_s * 1e3
     );
     let _ = writeln!(
@@ -147,7 +161,10 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         cell(a.d50, 1.0, 2),
         cell(a.ts_s, 1e3, 0),
     );
-    let _ = writeln!(text, "mean: 500 and 1000 Hz (ISO 3382-1:2009 Table A.1); noise: background re band peak");
+    let _ = writeln!(
+        text,
+        "mean: 500 and 1000 Hz (ISO 3382-1:2009 Table A.1); noise: background re band peak"
+    );
     for b in &analysis.bands {
         let p = &b.parameters;
         for (name, why) in &p.undefined {
@@ -174,14 +191,26 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
             averages: &analysis.averages,
         };
         let bytes = serde_json::to_vec_pretty(&doc)?;
-        write_atomic(json_path, &bytes).with_context(|| format!("{}: cannot write the JSON results", json_path.display()))?;
+        write_atomic(json_path, &bytes)
+            .with_context(|| format!("{}: cannot write the JSON results", json_path.display()))?;
         println!("wrote {}", json_path.display());
     }
     if let Some(dir) = &args.out {
-        let panels: Vec<DecayPanel<'_>> = analysis.bands.iter().map(|b| DecayPanel::from_band(&b.parameters)).collect();
-        let stem = args.file.file_stem().map_or_else(|| "ir".into(), |s| s.to_string_lossy().into_owned());
+        let panels: Vec<DecayPanel<'_>> = analysis
+            .bands
+            .iter()
+            .map(|b| DecayPanel::from_band(&b.parameters))
+            .collect();
+        let stem = args
+            .file
+            .file_stem()
+            .map_or_else(|| "ir".into(), |s| s.to_string_lossy().into_owned());
         let path = dir.join(format!("{stem}-decay.png"));
-        metrics::write_decay_chart(&path, &format!("Decay curves: {}", args.file.display()), &panels)?;
+        metrics::write_decay_chart(
+            &path,
+            &format!("Decay curves: {}", args.file.display()),
+            &panels,
+        )?;
         println!("wrote {}", path.display());
     }
     Ok(ExitCode::SUCCESS)

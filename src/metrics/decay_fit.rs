@@ -113,7 +113,12 @@ pub fn line_fit(times_s: &[f64], level_db: &[f64]) -> Option<(f64, f64, f64)> {
 /// total) with an optional floor (dB, same scale). The points used are those whose
 /// level lies within [bottom, top].
 #[must_use]
-pub fn fit_decay(times_s: &[f64], level_db: &[f64], range: DecayRange, floor_db: Option<f64>) -> DecayFit {
+pub fn fit_decay(
+    times_s: &[f64],
+    level_db: &[f64],
+    range: DecayRange,
+    floor_db: Option<f64>,
+) -> DecayFit {
     let mut fit = DecayFit {
         range,
         time_s: None,
@@ -145,7 +150,10 @@ pub fn fit_decay(times_s: &[f64], level_db: &[f64], range: DecayRange, floor_db:
         ));
         return fit;
     }
-    let start = level_db.iter().position(|&l| l <= range.top_db).unwrap_or(0);
+    let start = level_db
+        .iter()
+        .position(|&l| l <= range.top_db)
+        .unwrap_or(0);
     let end = level_db
         .iter()
         .position(|&l| l < range.bottom_db)
@@ -206,6 +214,9 @@ mod tests {
         let f = fit_decay(&t, &l, T30_RANGE, Some(-40.0));
         assert_eq!(f.status, FitStatus::LowMargin);
         let short: Vec<f64> = l.iter().map(|x| x.max(-30.0)).collect();
-        assert_eq!(fit_decay(&t, &short, T30_RANGE, None).status, FitStatus::RangeNotReached);
+        assert_eq!(
+            fit_decay(&t, &short, T30_RANGE, None).status,
+            FitStatus::RangeNotReached
+        );
     }
 }

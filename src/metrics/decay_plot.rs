@@ -17,7 +17,9 @@ pub const LEVEL_MIN_DB: f64 = -70.0;
 
 /// A chart that could not be written.
 #[derive(Debug, thiserror::Error)]
-#[error("{path}: cannot write the decay-curve chart ({message}); check that the folder is writable")]
+#[error(
+    "{path}: cannot write the decay-curve chart ({message}); check that the folder is writable"
+)]
 pub struct PlotError {
     /// Target file.
     pub path: PathBuf,
@@ -52,7 +54,11 @@ impl<'a> DecayPanel<'a> {
 }
 
 /// Writes the chart as PNG to `path` (atomically: temporary sibling, then rename).
-pub fn write_decay_chart(path: &Path, title: &str, panels: &[DecayPanel<'_>]) -> Result<(), PlotError> {
+pub fn write_decay_chart(
+    path: &Path,
+    title: &str,
+    panels: &[DecayPanel<'_>],
+) -> Result<(), PlotError> {
     plot::ensure_fonts();
     let err = |m: String| PlotError {
         path: path.to_path_buf(),
@@ -105,7 +111,10 @@ fn draw_panel<DB: DrawingBackend>(
     let t_max = points.last().map_or(1.0, |p| p.0).max(0.05) * 1.05;
     let mut chart = ChartBuilder::on(area)
         .margin(10)
-        .caption(format!("{} Hz", panel.band_hz), (plot::FONT, 16).into_font().color(&plot::INK))
+        .caption(
+            format!("{} Hz", panel.band_hz),
+            (plot::FONT, 16).into_font().color(&plot::INK),
+        )
         .x_label_area_size(36)
         .y_label_area_size(46)
         .build_cartesian_2d(0.0..t_max, LEVEL_MIN_DB..5.0)?;
@@ -125,19 +134,27 @@ fn draw_panel<DB: DrawingBackend>(
         )))?;
     }
     if let Some(f) = panel.floor_db.filter(|f| *f > LEVEL_MIN_DB) {
-        chart.draw_series(LineSeries::new(
-            [(0.0, f), (t_max, f)],
-            ShapeStyle::from(&plot::series_colour(4)).stroke_width(1),
-        ))?
-        .label("floor")
-        .legend(|(x, y)| PathElement::new([(x, y), (x + 16, y)], plot::series_colour(4)));
+        chart
+            .draw_series(LineSeries::new(
+                [(0.0, f), (t_max, f)],
+                ShapeStyle::from(&plot::series_colour(4)).stroke_width(1),
+            ))?
+            .label("floor")
+            .legend(|(x, y)| PathElement::new([(x, y), (x + 16, y)], plot::series_colour(4)));
     }
     chart
-        .draw_series(LineSeries::new(points, ShapeStyle::from(&plot::series_colour(0)).stroke_width(2)))?
+        .draw_series(LineSeries::new(
+            points,
+            ShapeStyle::from(&plot::series_colour(0)).stroke_width(2),
+        ))?
         .label("decay curve")
         .legend(|(x, y)| PathElement::new([(x, y), (x + 16, y)], plot::series_colour(0)));
-    for (i, fit) in [&panel.fits.edt, &panel.fits.t20, &panel.fits.t30].into_iter().enumerate() {
-        if let (Some((a, b)), Some(c), Some(s)) = (fit.span_s, fit.intercept_db, fit.slope_db_per_s) {
+    for (i, fit) in [&panel.fits.edt, &panel.fits.t20, &panel.fits.t30]
+        .into_iter()
+        .enumerate()
+    {
+        if let (Some((a, b)), Some(c), Some(s)) = (fit.span_s, fit.intercept_db, fit.slope_db_per_s)
+        {
             let colour = plot::series_colour(i + 1);
             chart
                 .draw_series(LineSeries::new(

@@ -43,7 +43,13 @@ pub fn total_energy(energy: &[f64], tail: Option<&Tail>) -> f64 {
 /// Clarity C_limit = 10 lg(E(0..limit) / E(limit..∞)) in dB; `None` when no
 /// energy lies on one side.
 #[must_use]
-pub fn clarity_db(energy: &[f64], bin_s: f64, onset_s: f64, limit_s: f64, tail: Option<&Tail>) -> Option<f64> {
+pub fn clarity_db(
+    energy: &[f64],
+    bin_s: f64,
+    onset_s: f64,
+    limit_s: f64,
+    tail: Option<&Tail>,
+) -> Option<f64> {
     let early = energy_before(energy, bin_s, onset_s, limit_s);
     let late = total_energy(energy, tail) - early;
     (early > 0.0 && late > 0.0).then(|| 10.0 * (early / late).log10())

@@ -54,14 +54,20 @@ impl Complex {
         Self::new(self.re - o.re, self.im - o.im)
     }
     fn mul(self, o: Self) -> Self {
-        Self::new(self.re * o.re - self.im * o.im, self.re * o.im + self.im * o.re)
+        Self::new(
+            self.re * o.re - self.im * o.im,
+            self.re * o.im + self.im * o.re,
+        )
     }
     fn scale(self, k: f64) -> Self {
         Self::new(self.re * k, self.im * k)
     }
     fn div(self, o: Self) -> Self {
         let d = o.re * o.re + o.im * o.im;
-        Self::new((self.re * o.re + self.im * o.im) / d, (self.im * o.re - self.re * o.im) / d)
+        Self::new(
+            (self.re * o.re + self.im * o.im) / d,
+            (self.im * o.re - self.re * o.im) / d,
+        )
     }
     fn abs(self) -> f64 {
         self.re.hypot(self.im)
@@ -93,7 +99,9 @@ impl Biquad {
         let num = Complex::new(self.b[0], 0.0)
             .add(z1.scale(self.b[1]))
             .add(z2.scale(self.b[2]));
-        let den = Complex::new(1.0, 0.0).add(z1.scale(self.a[0])).add(z2.scale(self.a[1]));
+        let den = Complex::new(1.0, 0.0)
+            .add(z1.scale(self.a[0]))
+            .add(z2.scale(self.a[1]));
         num.div(den)
     }
 
@@ -166,7 +174,11 @@ impl BandFilter {
         let eps2 = 10f64.powf(edge_loss_db / 10.0) - 1.0;
         let cutoff = eps2.powf(-1.0 / (2.0 * order as f64));
         let mut sections = Vec::with_capacity(order);
-        let bilinear = |s: Complex| Complex::new(fs2, 0.0).add(s).div(Complex::new(fs2, 0.0).sub(s));
+        let bilinear = |s: Complex| {
+            Complex::new(fs2, 0.0)
+                .add(s)
+                .div(Complex::new(fs2, 0.0).sub(s))
+        };
         // Section with poles z1, z2 (a conjugate pair or two real poles) and zeros at ±1.
         let section_from = |z1: Complex, z2: Complex| Biquad {
             b: [1.0, 0.0, -1.0],

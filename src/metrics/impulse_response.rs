@@ -1,6 +1,7 @@
 //! ISO 3382-1 parameters of a measured impulse response: onset on the broadband
 //! signal, zero-phase octave filtering, noise floor and tail compensation per
-//! band (Lundeby et al. 1995), then the same decay and energy-ratio computation as
+//! band (Lundeby et al. 1995: cut at the crossing point, mean noise power
+//! subtracted before the cut, exponential tail added), then the same decay and energy-ratio computation as
 //! for simulated echograms (G and J_LF need a calibrated source and a
 //! figure-of-eight microphone, so they are left undefined).
 
@@ -78,7 +79,13 @@ pub fn analyse_impulse_response(
 /// The slice starts a guard of two periods of the band centre before the onset,
 /// so the half of the zero-phase filtered direct sound that rings before the onset
 /// is counted (at t = 0) rather than lost.
-fn analyse_band(hz: u32, filter: &BandFilter, samples: &[f64], fs: f64, onset: usize) -> MeasuredBand {
+fn analyse_band(
+    hz: u32,
+    filter: &BandFilter,
+    samples: &[f64],
+    fs: f64,
+    onset: usize,
+) -> MeasuredBand {
     let filtered = filter.filter_zero_phase(samples);
     let guard = ((2.0 * fs / filter.centre_hz).round() as usize).min(onset);
     let squared: Vec<f64> = filtered[onset - guard..].iter().map(|x| x * x).collect();
@@ -90,15 +97,24 @@ fn analyse_band(hz: u32, filter: &BandFilter, samples: &[f64], fs: f64, onset: u
             let cut = guard + noise.crossing_index;
             let mut tail = noise.tail(fs);
             tail.start_s += onset_s;
-            let used = &squared[..cut];
+            // Subtract the mean noise power before integrating (ISO 3382-1:2009,
+            // 5.3.4, noise subtraction, clause from memory), then add the tail.
+            let used: Vec<f64> = squared[..cut]
+                .iter()
+                .map(|e| e - noise.noise_mean_square)
+                .collect();
+            let used = &used[..];
             let total: f64 = used.iter().sum::<f64>() + tail.energy;
-            let floor_db = (total > 0.0 && tail.energy > 0.0).then(|| 10.0 * (tail.energy / total).log10());
-            let mut parameters = decay_parameters(hz, used, 1.0 / fs, onset_s, Some(tail), floor_db);
+            let floor_db =
+                (total > 0.0 && tail.energy > 0.0).then(|| 10.0 * (tail.energy / total).log10());
+            let mut parameters =
+                decay_parameters(hz, used, 1.0 / fs, onset_s, Some(tail), floor_db);
             mark_unmeasured(&mut parameters);
             if !noise.converged {
-                parameters
-                    .warnings
-                    .push(format!("noise-floor search did not settle in {} iterations", noise.iterations));
+                parameters.warnings.push(format!(
+                    "noise-floor search did not settle in {} iterations",
+                    noise.iterations
+                ));
             }
             MeasuredBand {
                 parameters,
@@ -110,7 +126,9 @@ fn analyse_band(hz: u32, filter: &BandFilter, samples: &[f64], fs: f64, onset: u
         Err(e) => {
             // No floor: use the whole response uncompensated and say so.
             let mut parameters = decay_parameters(hz, &squared, 1.0 / fs, onset_s, None, None);
-            parameters.warnings.push(format!("no noise floor found ({e}); the decay is not compensated"));
+            parameters.warnings.push(format!(
+                "no noise floor found ({e}); the decay is not compensated"
+            ));
             mark_unmeasured(&mut parameters);
             MeasuredBand {
                 parameters,

@@ -13,6 +13,7 @@ pub fn lateral_fraction(lateral: &[f64], energy: &[f64], bin_s: f64, onset_s: f6
     if early <= 0.0 {
         return None;
     }
-    let lat = energy_before(lateral, bin_s, onset_s, 0.080) - energy_before(lateral, bin_s, onset_s, 0.005);
+    let lat = energy_before(lateral, bin_s, onset_s, 0.080)
+        - energy_before(lateral, bin_s, onset_s, 0.005);
     Some(lat / early)
 }

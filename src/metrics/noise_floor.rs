@@ -83,7 +83,12 @@ fn smooth(squared: &[f64], len: usize) -> Vec<(f64, f64)> {
         .chunks(len)
         .filter(|c| c.len() == len)
         .enumerate()
-        .map(|(i, c)| ((i * len) as f64 + 0.5 * len as f64, c.iter().sum::<f64>() / len as f64))
+        .map(|(i, c)| {
+            (
+                (i * len) as f64 + 0.5 * len as f64,
+                c.iter().sum::<f64>() / len as f64,
+            )
+        })
         .collect()
 }
 
@@ -97,7 +102,10 @@ fn mean(x: &[f64]) -> f64 {
 
 /// Runs the iteration on a squared band response `squared` (x², starting at the
 /// onset) sampled at `sample_rate_hz`.
-pub fn find_noise_floor(squared: &[f64], sample_rate_hz: f64) -> Result<NoiseFloor, NoiseFloorError> {
+pub fn find_noise_floor(
+    squared: &[f64],
+    sample_rate_hz: f64,
+) -> Result<NoiseFloor, NoiseFloorError> {
     let n = squared.len();
     let first_len = ((FIRST_INTERVAL_S * sample_rate_hz).round() as usize).max(1);
     if n < 10 * first_len {
@@ -107,10 +115,11 @@ pub fn find_noise_floor(squared: &[f64], sample_rate_hz: f64) -> Result<NoiseFlo
     let blocks = smooth(squared, first_len);
     let mut noise = mean(&squared[n - n / 10..]);
     let noise_db0 = db(noise);
-    let (peak_i, peak) = blocks
-        .iter()
-        .enumerate()
-        .fold((0, 0.0), |(bi, bv), (i, &(_, v))| if v > bv { (i, v) } else { (bi, bv) });
+    let (peak_i, peak) =
+        blocks.iter().enumerate().fold(
+            (0, 0.0),
+            |(bi, bv), (i, &(_, v))| if v > bv { (i, v) } else { (bi, bv) },
+        );
     let range_db = db(peak) - noise_db0;
     if range_db < 20.0 {
         return Err(NoiseFloorError::TooLittleRange { range_db });

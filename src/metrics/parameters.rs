@@ -130,7 +130,10 @@ pub(crate) fn decay_parameters(
         for name in ["C50_db", "C80_db", "D50", "Ts_s"] {
             undefined.insert(
                 name.into(),
-                format!("the data end {:.1} ms after the direct sound, before the 80 ms limit", data_end_s * 1e3),
+                format!(
+                    "the data end {:.1} ms after the direct sound, before the 80 ms limit",
+                    data_end_s * 1e3
+                ),
             );
         }
     } else {
@@ -140,7 +143,10 @@ pub(crate) fn decay_parameters(
         ts = centre_time_s(energy, bin_s, onset_s, tail.as_ref());
         for (name, v) in [("C50_db", c50), ("C80_db", c80), ("D50", d50), ("Ts_s", ts)] {
             if v.is_none() {
-                undefined.insert(name.into(), "no energy on one side of the time limit".into());
+                undefined.insert(
+                    name.into(),
+                    "no energy on one side of the time limit".into(),
+                );
             }
         }
     }
@@ -184,34 +190,51 @@ pub fn histogram_parameters(band: &EchogramBand<'_>) -> BandParameters {
         None => {
             // No late decay to continue: the floor is the level of the last bin start.
             let last = band.energy.iter().rposition(|&e| e > 0.0);
-            notes = Some("no decaying late part found: the end of the echogram is not compensated".to_string());
+            notes = Some(
+                "no decaying late part found: the end of the echogram is not compensated"
+                    .to_string(),
+            );
             last.filter(|_| raw_total > 0.0)
                 .map(|k| 10.0 * (band.energy[k] / raw_total).log10())
         }
     };
-    let mut p = decay_parameters(band.band_hz, band.energy, band.bin_s, band.onset_s, tail, floor_db);
+    let mut p = decay_parameters(
+        band.band_hz,
+        band.energy,
+        band.bin_s,
+        band.onset_s,
+        tail,
+        floor_db,
+    );
     if let Some(n) = notes {
         p.warnings.push(n);
     }
     p.g_db = strength_db(band.energy, p.tail.as_ref());
     if p.g_db.is_none() {
-        p.undefined.insert("G_db".into(), "the echogram holds no energy".into());
+        p.undefined
+            .insert("G_db".into(), "the echogram holds no energy".into());
     }
     match band.lateral {
         Some(lat) if lat.len() == band.energy.len() => {
             p.jlf = lateral_fraction(lat, band.energy, band.bin_s, band.onset_s);
             if p.jlf.is_none() {
-                p.undefined.insert("JLF".into(), "no energy in the first 80 ms".into());
+                p.undefined
+                    .insert("JLF".into(), "no energy in the first 80 ms".into());
             }
         }
         Some(lat) => {
             p.undefined.insert(
                 "JLF".into(),
-                format!("lateral series has {} bins but the echogram {}", lat.len(), band.energy.len()),
+                format!(
+                    "lateral series has {} bins but the echogram {}",
+                    lat.len(),
+                    band.energy.len()
+                ),
             );
         }
         None => {
-            p.undefined.insert("JLF".into(), "no lateral-weighted series given".into());
+            p.undefined
+                .insert("JLF".into(), "no lateral-weighted series given".into());
         }
     }
     p

@@ -83,6 +83,10 @@ mod tests {
         let t = truncation_tail(&e, bin, 0).unwrap();
         assert!((t.decay_rate_per_s / k - 1.0).abs() < 1e-3);
         let exact = (-k * 0.5f64).exp() / k;
-        assert!((t.energy / exact - 1.0).abs() < 1e-3, "{} vs {exact}", t.energy);
+        assert!(
+            (t.energy / exact - 1.0).abs() < 1e-3,
+            "{} vs {exact}",
+            t.energy
+        );
     }
 }

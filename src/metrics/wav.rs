@@ -90,7 +90,8 @@ pub struct ImpulseResponse {
 /// Reads and checks a WAV impulse response.
 pub fn read_wav(path: &Path) -> Result<ImpulseResponse, WavError> {
     let p = || path.to_path_buf();
-    let mut reader = hound::WavReader::open(path).map_err(|source| WavError::Unreadable { path: p(), source })?;
+    let mut reader = hound::WavReader::open(path)
+        .map_err(|source| WavError::Unreadable { path: p(), source })?;
     let spec = reader.spec();
     let channels = spec.channels.max(1) as usize;
     let unreadable = |source| WavError::Unreadable { path: p(), source };
@@ -118,7 +119,11 @@ pub fn read_wav(path: &Path) -> Result<ImpulseResponse, WavError> {
             return Err(WavError::Format {
                 path: p(),
                 bits,
-                format: if fmt == hound::SampleFormat::Int { "integer" } else { "float" },
+                format: if fmt == hound::SampleFormat::Int {
+                    "integer"
+                } else {
+                    "float"
+                },
             })
         }
     };
@@ -134,7 +139,12 @@ pub fn read_wav(path: &Path) -> Result<ImpulseResponse, WavError> {
 
 /// The checks of [`read_wav`] on decoded samples (full scale = largest magnitude
 /// the format can hold).
-pub fn check_samples(path: &Path, samples: &[f64], full_scale: f64, sample_rate_hz: f64) -> Result<(), WavError> {
+pub fn check_samples(
+    path: &Path,
+    samples: &[f64],
+    full_scale: f64,
+    sample_rate_hz: f64,
+) -> Result<(), WavError> {
     let p = || path.to_path_buf();
     let Some(&first) = samples.first() else {
         return Err(WavError::Empty { path: p() });
@@ -143,7 +153,10 @@ pub fn check_samples(path: &Path, samples: &[f64], full_scale: f64, sample_rate_
         return Err(WavError::Silent { path: p() });
     }
     if samples.iter().all(|&x| x == first) {
-        return Err(WavError::Flat { path: p(), value: first });
+        return Err(WavError::Flat {
+            path: p(),
+            value: first,
+        });
     }
     // Longest run at full scale.
     let (mut run, mut best, mut best_start) = (0usize, 0usize, 0usize);
