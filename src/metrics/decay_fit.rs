@@ -142,7 +142,7 @@ pub fn fit_decay(
         }
     }
     let lowest = level_db.iter().copied().fold(f64::INFINITY, f64::min);
-    if !(lowest <= range.bottom_db) {
+    if lowest.is_nan() || lowest > range.bottom_db {
         fit.status = FitStatus::RangeNotReached;
         fit.reason = Some(format!(
             "{}: the decay curve falls only to {:.1} dB, not to {} dB",

@@ -91,8 +91,7 @@ pub struct BandParameters {
 }
 
 /// Computes everything except G and J_LF from `energy` (per bin), with an optional
-/// tail continuation and a floor in dB re total. `end_s` is the time after the
-/// onset where the data end (for the 50/80 ms limits).
+/// tail continuation and a floor in dB re total.
 pub(crate) fn decay_parameters(
     band_hz: u32,
     energy: &[f64],
