@@ -120,7 +120,7 @@ fn draw_panel<DB: DrawingBackend>(
         .build_cartesian_2d(0.0..t_max, LEVEL_MIN_DB..5.0)?;
     chart
         .configure_mesh()
-        .light_line_style(plot::GRID)
+        .light_line_style(plot::PAPER)
         .bold_line_style(plot::GRID)
         .axis_style(plot::INK)
         .label_style((plot::FONT, 12).into_font().color(&plot::INK))
