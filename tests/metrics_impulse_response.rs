@@ -91,3 +91,30 @@ fn noise_floor_45_db_down_is_found_and_compensated() {
         assert!((-52.0..-38.0).contains(&floor), "{hz} Hz floor {floor}");
     }
 }
+
+#[test]
+fn wav_reader_takes_the_first_channel_of_24_bit_files() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("stereo24.wav");
+    let spec = hound::WavSpec {
+        channels: 2,
+        sample_rate: 16_000,
+        bits_per_sample: 24,
+        sample_format: hound::SampleFormat::Int,
+    };
+    let mut w = hound::WavWriter::create(&path, spec).unwrap();
+    let r = recipe(None);
+    let x = r.samples();
+    for &s in x.iter().take(8_000) {
+        w.write_sample((s * 4_194_304.0).round() as i32).unwrap(); // first channel, half scale
+        w.write_sample(0).unwrap(); // second channel silent
+    }
+    w.finalize().unwrap();
+    let ir = read_wav(&path).unwrap();
+    assert_eq!(ir.channels, 2);
+    assert_eq!(ir.samples.len(), 8_000);
+    // 24-bit full scale is 2^23; we wrote s · 2^22, so the reader returns s / 2.
+    for (a, b) in ir.samples.iter().zip(&x).take(8_000) {
+        assert!((a - b / 2.0).abs() < 1e-6);
+    }
+}
