@@ -11,6 +11,7 @@
 use glam::DVec3;
 
 use super::bound::ZoneSize;
+use super::data::GoniometerGeometry;
 
 /// Angles closer than this to a zone edge (degrees) count as inside: edges are included.
 const EDGE_TOLERANCE_DEG: f64 = 1e-6;
@@ -103,6 +104,44 @@ impl ZoneRule {
                 }
             })
             .collect()
+    }
+}
+
+impl ZoneRule {
+    /// The zone rule a polar data file asks for: its `zone_half_width_deg` when
+    /// given, otherwise the image-source construction on its sample.
+    #[must_use]
+    pub fn from_geometry(g: &GoniometerGeometry) -> Self {
+        match g.zone_half_width_deg {
+            Some(half_width_deg) => Self::HalfWidth { half_width_deg },
+            None => Self::Sample {
+                sample_width_m: g.sample_width_m,
+                sample_depth_m: g.sample_depth_m,
+                source_distance_m: g.source_distance_m,
+                receiver_distance_m: g.receiver_distance_m,
+            },
+        }
+    }
+
+    /// One-line description for reports.
+    #[must_use]
+    pub fn describe(&self) -> String {
+        match self {
+            Self::HalfWidth { half_width_deg } => format!(
+                "specular zone = receivers within {half_width_deg}° of the mirror direction (edges included)"
+            ),
+            Self::Sample {
+                sample_width_m,
+                sample_depth_m,
+                source_distance_m,
+                receiver_distance_m,
+            } => {
+                let depth = sample_depth_m.map(|d| format!(" × {d} m")).unwrap_or_default();
+                format!(
+                    "specular zone = receivers reached by the image-source reflection off a {sample_width_m} m{depth} sample, source at {source_distance_m} m, receivers at {receiver_distance_m} m"
+                )
+            }
+        }
     }
 }
 
