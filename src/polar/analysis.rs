@@ -153,8 +153,9 @@ pub fn analyze_response(
     let in_zone = zone.membership(incidence, &receiver_directions(r));
     let zone_size = ZoneSize::from_membership(&in_zone, &weight);
     let energy = energies_from_levels_db(&r.level_db);
-    let d = diffusion_coefficient(&energy, &weight)
-        .ok_or_else(|| err("the diffusion coefficient is undefined (no energy, or fewer than 2 receivers)"))?;
+    let d = diffusion_coefficient(&energy, &weight).ok_or_else(|| {
+        err("the diffusion coefficient is undefined (no energy, or fewer than 2 receivers)")
+    })?;
     let s_zone = zone_scattering_ratio(&energy, &weight, &in_zone)
         .ok_or_else(|| err("the response carries no energy"))?;
     let d_ref = r

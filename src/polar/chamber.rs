@@ -239,7 +239,11 @@ fn validate(f: &ChamberFile) -> Vec<(Vec<Seg>, String)> {
         for (i, &t) in m.reverberation_time_s.iter().enumerate() {
             if !(t.is_finite() && t > 0.0) {
                 found.push((
-                    vec![Seg::Key(key), Seg::Key("reverberation_time_s"), Seg::Index(i)],
+                    vec![
+                        Seg::Key(key),
+                        Seg::Key("reverberation_time_s"),
+                        Seg::Index(i),
+                    ],
                     format!("{t} is not a reverberation time in seconds"),
                 ));
             }
@@ -247,13 +251,19 @@ fn validate(f: &ChamberFile) -> Vec<(Vec<Seg>, String)> {
         if !(m.temperature_c.is_finite() && (-50.0..=60.0).contains(&m.temperature_c)) {
             found.push((
                 at("temperature_c"),
-                format!("{} is not an air temperature in °C (−50 to 60)", m.temperature_c),
+                format!(
+                    "{} is not an air temperature in °C (−50 to 60)",
+                    m.temperature_c
+                ),
             ));
         }
         if !(m.humidity_pct.is_finite() && (0.0..=100.0).contains(&m.humidity_pct)) {
             found.push((
                 at("humidity_pct"),
-                format!("{} is not a relative humidity in % (0 to 100)", m.humidity_pct),
+                format!(
+                    "{} is not a relative humidity in % (0 to 100)",
+                    m.humidity_pct
+                ),
             ));
         }
         if !(m.pressure_kpa.is_finite() && m.pressure_kpa > 0.0) {

@@ -64,7 +64,10 @@ pub fn parse_polar_csv(text: &str, file: &Path) -> Result<PolarCsv, PolarFileErr
         problems.push(problem(
             header_line,
             "column 1".into(),
-            format!("header is `{}`; the first column must be `angle_deg`", cells[0]),
+            format!(
+                "header is `{}`; the first column must be `angle_deg`",
+                cells[0]
+            ),
         ));
     }
     if cells.len() < 2 {
@@ -123,7 +126,11 @@ pub fn parse_polar_csv(text: &str, file: &Path) -> Result<PolarCsv, PolarFileErr
                     continue;
                 }
                 Err(_) => {
-                    let what = if c == 0 { "an angle in degrees" } else { "a level in dB" };
+                    let what = if c == 0 {
+                        "an angle in degrees"
+                    } else {
+                        "a level in dB"
+                    };
                     problems.push(problem(line, name, format!("`{cell}` is not {what}")));
                     continue;
                 }

@@ -126,7 +126,9 @@ pub fn parse_polar_toml(text: &str, file: &Path) -> Result<PolarFile, PolarFileE
         return Ok(parsed);
     }
     // The text parsed once, so it parses again; spans give the lines.
-    let tree = DeTable::parse(text).ok().map(|t| DeValue::Table(t.into_inner()));
+    let tree = DeTable::parse(text)
+        .ok()
+        .map(|t| DeValue::Table(t.into_inner()));
     let problems = found
         .into_iter()
         .map(|(path, message)| Problem {
@@ -236,7 +238,10 @@ fn validate_response(k: usize, r: &PolarResponse, arrangement: Arrangement, foun
         ]
     };
     if !(r.band_hz.is_finite() && r.band_hz > 0.0) {
-        found.push((at("band_hz"), format!("{} is not a frequency in Hz", r.band_hz)));
+        found.push((
+            at("band_hz"),
+            format!("{} is not a frequency in Hz", r.band_hz),
+        ));
     }
     if !(r.incidence_deg.is_finite() && r.incidence_deg.abs() < 90.0) {
         found.push((
@@ -256,7 +261,10 @@ fn validate_response(k: usize, r: &PolarResponse, arrangement: Arrangement, foun
     }
     for (i, &t) in r.receiver_deg.iter().enumerate() {
         if !(t.is_finite() && t.abs() <= 90.0) {
-            found.push((at_i("receiver_deg", i), format!("{t} is not a receiver angle within ±90°")));
+            found.push((
+                at_i("receiver_deg", i),
+                format!("{t} is not a receiver angle within ±90°"),
+            ));
         }
     }
     // Azimuths: required for hemispheres, meaningless for a plane.
@@ -279,17 +287,26 @@ fn validate_response(k: usize, r: &PolarResponse, arrangement: Arrangement, foun
             ));
         }
         for i in 0..m {
-            if let Some(j) = r.receiver_deg[..i].iter().position(|&t| t == r.receiver_deg[i]) {
+            if let Some(j) = r.receiver_deg[..i]
+                .iter()
+                .position(|&t| t == r.receiver_deg[i])
+            {
                 found.push((
                     at_i("receiver_deg", i),
-                    format!("angle {}° repeats receiver_deg[{j}]; each receiver needs its own angle", r.receiver_deg[i]),
+                    format!(
+                        "angle {}° repeats receiver_deg[{j}]; each receiver needs its own angle",
+                        r.receiver_deg[i]
+                    ),
                 ));
             }
         }
     }
     if let Some(a) = r.incidence_azimuth_deg {
         if !a.is_finite() {
-            found.push((at("incidence_azimuth_deg"), format!("{a} is not an azimuth in degrees")));
+            found.push((
+                at("incidence_azimuth_deg"),
+                format!("{a} is not an azimuth in degrees"),
+            ));
         }
     }
     let mut per_receiver = |key: &'static str, values: Option<&Vec<f64>>, what: &str| {
@@ -309,20 +326,39 @@ fn validate_response(k: usize, r: &PolarResponse, arrangement: Arrangement, foun
             }
         }
     };
-    per_receiver("receiver_azimuth_deg", r.receiver_azimuth_deg.as_ref(), "azimuth in degrees");
+    per_receiver(
+        "receiver_azimuth_deg",
+        r.receiver_azimuth_deg.as_ref(),
+        "azimuth in degrees",
+    );
     per_receiver("level_db", Some(&r.level_db), "level in dB");
     per_receiver("pressure_re", r.pressure_re.as_ref(), "pressure");
     per_receiver("pressure_im", r.pressure_im.as_ref(), "pressure");
-    per_receiver("reference_level_db", r.reference_level_db.as_ref(), "level in dB");
+    per_receiver(
+        "reference_level_db",
+        r.reference_level_db.as_ref(),
+        "level in dB",
+    );
     per_receiver("reference_re", r.reference_re.as_ref(), "pressure");
     per_receiver("reference_im", r.reference_im.as_ref(), "pressure");
     for (re, im, re_key, im_key) in [
         (&r.pressure_re, &r.pressure_im, "pressure_re", "pressure_im"),
-        (&r.reference_re, &r.reference_im, "reference_re", "reference_im"),
+        (
+            &r.reference_re,
+            &r.reference_im,
+            "reference_re",
+            "reference_im",
+        ),
     ] {
         match (re.is_some(), im.is_some()) {
-            (true, false) => found.push((at(re_key), format!("{re_key} is given without {im_key}; give both or neither"))),
-            (false, true) => found.push((at(im_key), format!("{im_key} is given without {re_key}; give both or neither"))),
+            (true, false) => found.push((
+                at(re_key),
+                format!("{re_key} is given without {im_key}; give both or neither"),
+            )),
+            (false, true) => found.push((
+                at(im_key),
+                format!("{im_key} is given without {re_key}; give both or neither"),
+            )),
             _ => {}
         }
     }

@@ -66,7 +66,11 @@ pub struct PolarChart {
 /// `None` when no receiver is in the zone.
 #[must_use]
 pub fn zone_interval_deg(angle_deg: &[f64], in_zone: &[bool]) -> Option<(f64, f64)> {
-    let mut pairs: Vec<(f64, bool)> = angle_deg.iter().copied().zip(in_zone.iter().copied()).collect();
+    let mut pairs: Vec<(f64, bool)> = angle_deg
+        .iter()
+        .copied()
+        .zip(in_zone.iter().copied())
+        .collect();
     pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
     let first = pairs.iter().position(|p| p.1)?;
     let last = pairs.iter().rposition(|p| p.1)?;
@@ -147,20 +151,32 @@ fn render_polar<DB: DrawingBackend>(
         let (s, c) = angle_deg.to_radians().sin_cos();
         ((cx + r * s).round() as i32, (cy - r * c).round() as i32)
     };
-    let range_db = if chart.range_db > 0.0 { chart.range_db } else { 40.0 };
+    let range_db = if chart.range_db > 0.0 {
+        chart.range_db
+    } else {
+        40.0
+    };
     let max_db = chart
         .curves
         .iter()
         .flat_map(|c| c.level_db.iter().copied())
         .fold(f64::NEG_INFINITY, f64::max);
-    let top_db = if max_db.is_finite() { (max_db / 5.0).ceil() * 5.0 } else { 0.0 };
+    let top_db = if max_db.is_finite() {
+        (max_db / 5.0).ceil() * 5.0
+    } else {
+        0.0
+    };
     let radius_of = |l: f64| ((l - (top_db - range_db)) / range_db).clamp(0.0, 1.0) * radius;
 
     // Title.
     root.draw(&Text::new(
         chart.title.clone(),
         ((0.5 * w) as i32, 14),
-        (FONT, 22).into_font().style(FontStyle::Bold).color(&INK).pos(Pos::new(HPos::Center, VPos::Top)),
+        (FONT, 22)
+            .into_font()
+            .style(FontStyle::Bold)
+            .color(&INK)
+            .pos(Pos::new(HPos::Center, VPos::Top)),
     ))
     .map_err(e)?;
 
@@ -176,10 +192,11 @@ fn render_polar<DB: DrawingBackend>(
 
     // Level rings every 10 dB and angle spokes every 30°.
     let mut ring_db = top_db;
-    while ring_db >= top_db - range_db - 1e-9 {
+    while ring_db > top_db - range_db + 1e-9 {
         let r = radius_of(ring_db);
         let pts: Vec<(i32, i32)> = (0..=180).map(|k| at(-90.0 + f64::from(k), r)).collect();
-        root.draw(&PathElement::new(pts, GRID.stroke_width(1))).map_err(e)?;
+        root.draw(&PathElement::new(pts, GRID.stroke_width(1)))
+            .map_err(e)?;
         root.draw(&Text::new(
             format!("{ring_db:.0} dB"),
             (at(90.0, r).0, (cy + 8.0) as i32),
@@ -190,11 +207,18 @@ fn render_polar<DB: DrawingBackend>(
     }
     for k in -3..=3 {
         let a = f64::from(k) * 30.0;
-        root.draw(&PathElement::new(vec![at(a, 0.0), at(a, radius)], GRID.stroke_width(1)))
-            .map_err(e)?;
+        root.draw(&PathElement::new(
+            vec![at(a, 0.0), at(a, radius)],
+            GRID.stroke_width(1),
+        ))
+        .map_err(e)?;
         let (x, y) = at(a, radius + 16.0);
-        root.draw(&Text::new(format!("{a:.0}°"), (x, y), text_style(14, HPos::Center, VPos::Center)))
-            .map_err(e)?;
+        root.draw(&Text::new(
+            format!("{a:.0}°"),
+            (x, y),
+            text_style(14, HPos::Center, VPos::Center),
+        ))
+        .map_err(e)?;
     }
     // The sample along the baseline.
     root.draw(&PathElement::new(
@@ -205,41 +229,79 @@ fn render_polar<DB: DrawingBackend>(
 
     // Source direction.
     if let Some(psi) = chart.incidence_deg {
-        root.draw(&PathElement::new(vec![at(psi, 0.82 * radius), at(psi, radius)], INK.stroke_width(3)))
+        root.draw(&PathElement::new(
+            vec![at(psi, 0.82 * radius), at(psi, radius)],
+            INK.stroke_width(3),
+        ))
+        .map_err(e)?;
+        root.draw(&Circle::new(at(psi, radius), 6, INK.filled()))
             .map_err(e)?;
-        root.draw(&Circle::new(at(psi, radius), 6, INK.filled())).map_err(e)?;
-        let (x, y) = at(psi, radius + 34.0);
-        root.draw(&Text::new("source".to_string(), (x, y), text_style(13, HPos::Center, VPos::Center)))
-            .map_err(e)?;
+        let (x, y) = at(psi, 0.78 * radius);
+        let h = if psi >= 0.0 { HPos::Left } else { HPos::Right };
+        root.draw(&Text::new(
+            "source".to_string(),
+            (x, y),
+            text_style(13, h, VPos::Center),
+        ))
+        .map_err(e)?;
     }
 
     // Curves.
     for (i, curve) in chart.curves.iter().enumerate() {
         let colour = series_colour(i);
-        let mut pairs: Vec<(f64, f64)> =
-            curve.angle_deg.iter().copied().zip(curve.level_db.iter().copied()).collect();
+        let mut pairs: Vec<(f64, f64)> = curve
+            .angle_deg
+            .iter()
+            .copied()
+            .zip(curve.level_db.iter().copied())
+            .collect();
         pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
-        let pts: Vec<(i32, i32)> = pairs.iter().map(|&(a, l)| at(a, radius_of(l))).collect();
+        let mut pts: Vec<(i32, i32)> = pairs.iter().map(|&(a, l)| at(a, radius_of(l))).collect();
+        // Near-repeated pixels (levels clamped to the centre) give zero-length
+        // segments, which the bitmap backend's wide lines draw as stray spikes.
+        pts.dedup_by(|b, a| (b.0 - a.0).abs() <= 2 && (b.1 - a.1).abs() <= 2);
         if curve.dashed {
-            root.draw(&DashedPathElement::new(pts.clone().into_iter(), 8, 6, colour.stroke_width(2)))
-                .map_err(e)?;
+            root.draw(&DashedPathElement::new(
+                pts.clone().into_iter(),
+                8,
+                6,
+                colour.stroke_width(2),
+            ))
+            .map_err(e)?;
         } else {
-            root.draw(&PathElement::new(pts.clone(), colour.stroke_width(2))).map_err(e)?;
+            // Segment by segment: the bitmap backend's mitred joins spike at sharp turns.
+            for seg in pts.windows(2) {
+                root.draw(&PathElement::new(seg.to_vec(), colour.stroke_width(2)))
+                    .map_err(e)?;
+            }
             for p in &pts {
                 root.draw(&Circle::new(*p, 3, colour.filled())).map_err(e)?;
             }
         }
         // Legend entry.
         let y = 62 + 22 * i as i32;
-        root.draw(&PathElement::new(vec![(24, y), (54, y)], colour.stroke_width(3))).map_err(e)?;
-        root.draw(&Text::new(curve.label.clone(), (62, y), text_style(15, HPos::Left, VPos::Center)))
-            .map_err(e)?;
+        root.draw(&PathElement::new(
+            vec![(24, y), (54, y)],
+            colour.stroke_width(3),
+        ))
+        .map_err(e)?;
+        root.draw(&Text::new(
+            curve.label.clone(),
+            (62, y),
+            text_style(15, HPos::Left, VPos::Center),
+        ))
+        .map_err(e)?;
     }
     if chart.zone_deg.is_some() {
         let y = 62 + 22 * chart.curves.len() as i32;
-        root.draw(&Rectangle::new([(24, y - 7), (54, y + 7)], SHADE.filled())).map_err(e)?;
-        root.draw(&Text::new("specular zone".to_string(), (62, y), text_style(15, HPos::Left, VPos::Center)))
+        root.draw(&Rectangle::new([(24, y - 7), (54, y + 7)], SHADE.filled()))
             .map_err(e)?;
+        root.draw(&Text::new(
+            "specular zone".to_string(),
+            (62, y),
+            text_style(15, HPos::Left, VPos::Center),
+        ))
+        .map_err(e)?;
     }
     Ok(())
 }
@@ -277,7 +339,10 @@ fn render_bound<DB: DrawingBackend>(
     let e = |e: DrawingAreaErrorKind<DB::ErrorType>| e.to_string();
     root.fill(&PAPER).map_err(e)?;
     let mut chart = ChartBuilder::on(root)
-        .caption(title, (FONT, 22).into_font().style(FontStyle::Bold).color(&INK))
+        .caption(
+            title,
+            (FONT, 22).into_font().style(FontStyle::Bold).color(&INK),
+        )
         .margin(20)
         .x_label_area_size(55)
         .y_label_area_size(65)
@@ -316,7 +381,9 @@ fn render_bound<DB: DrawingBackend>(
             "bound d_max(s), {} receivers, {} in the zone",
             zone.receivers, zone.zone_receivers
         ))
-        .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], series_colour(0).stroke_width(3)));
+        .legend(|(x, y)| {
+            PathElement::new(vec![(x, y), (x + 24, y)], series_colour(0).stroke_width(3))
+        });
     let s_star = zone.s_star();
     chart
         .draw_series(std::iter::once(DashedPathElement::new(
