@@ -86,18 +86,19 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     .with_context(|| file.display().to_string())?;
     let out_dir = args.out.clone().unwrap_or_else(|| default_out_dir(&file));
     let mut files = write_charts(&out_dir, &input, &analysis, args.range_db)?;
-    let summary = serde_json::json!({
-        "file": file.display().to_string(),
-        "name": input.name,
-        "arrangement": input.arrangement,
-        "zone": input.zone,
-        "bands": analysis.bands,
-        "random_incidence": {
-            "weighting": analysis.weighting,
-            "bands": analysis.random_incidence,
+    let mut summary = Summary {
+        file: file.display().to_string(),
+        name: &input.name,
+        arrangement: input.arrangement,
+        zone: &input.zone,
+        bands: &analysis.bands,
+        random_incidence: RandomSummary {
+            weighting: analysis.weighting,
+            bands: &analysis.random_incidence,
         },
-        "warnings": analysis.warnings,
-    });
+        warnings: &analysis.warnings,
+        files: None,
+    };
     let json_path = out_dir.join("coefficients.json");
     let text = serde_json::to_string_pretty(&summary)?;
     write_atomic(&json_path, text.as_bytes())
@@ -107,14 +108,34 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         eprintln!("warning: {}: {w}", file.display());
     }
     if args.json {
-        let mut summary = summary;
-        summary["files"] = files.iter().map(|f| f.display().to_string()).collect();
+        summary.files = Some(files.iter().map(|f| f.display().to_string()).collect());
         println!("{}", serde_json::to_string_pretty(&summary)?);
     } else {
         print!("{}", table(&file, &input, &analysis));
         println!("wrote {} files to {}", files.len(), out_dir.display());
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// The JSON report: printed with `--json`, written as `coefficients.json`.
+#[derive(serde::Serialize)]
+struct Summary<'a> {
+    file: String,
+    name: &'a str,
+    arrangement: Arrangement,
+    zone: &'a ZoneRule,
+    bands: &'a [ResponseCoefficients],
+    random_incidence: RandomSummary<'a>,
+    warnings: &'a [String],
+    #[serde(skip_serializing_if = "Option::is_none")]
+    files: Option<Vec<String>>,
+}
+
+/// Random-incidence part of the JSON report.
+#[derive(serde::Serialize)]
+struct RandomSummary<'a> {
+    weighting: IncidenceWeighting,
+    bands: &'a [polaray::polar::analysis::RandomIncidence],
 }
 
 /// Polar data ready for analysis, from either input form.

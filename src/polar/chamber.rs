@@ -8,7 +8,7 @@ use std::path::Path;
 use serde::Deserialize;
 use toml::de::{DeTable, DeValue};
 
-use super::load::{item_name, line_of, span_of, PolarFileError, Problem, Seg};
+use super::load::{item_name, line_of, span_of, syntax_problem, PolarFileError, Problem, Seg};
 use crate::air::AirConditions;
 
 /// Conditions and reverberation times of one of the four measurements.
@@ -166,13 +166,8 @@ pub fn load_chamber_file(path: &Path) -> Result<ChamberFile, PolarFileError> {
             message: format!("cannot read the file: {e}"),
         }])
     })?;
-    let parsed: ChamberFile = toml::from_str(&text).map_err(|e| {
-        fail(vec![Problem {
-            line: e.span().map(|s| line_of(&text, s.start)),
-            item: String::new(),
-            message: e.message().trim_end().to_string(),
-        }])
-    })?;
+    let parsed: ChamberFile =
+        toml::from_str(&text).map_err(|e| fail(vec![syntax_problem(&text, &e)]))?;
     let found = validate(&parsed);
     if found.is_empty() {
         return Ok(parsed);

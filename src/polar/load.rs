@@ -114,13 +114,8 @@ pub fn parse_polar_toml(text: &str, file: &Path) -> Result<PolarFile, PolarFileE
         file: file.to_path_buf(),
         problems,
     };
-    let parsed: PolarFile = toml::from_str(text).map_err(|e| {
-        fail(vec![Problem {
-            line: e.span().map(|s| line_of(text, s.start)),
-            item: String::new(),
-            message: e.message().trim_end().to_string(),
-        }])
-    })?;
+    let parsed: PolarFile =
+        toml::from_str(text).map_err(|e| fail(vec![syntax_problem(text, &e)]))?;
     let found = validate(&parsed);
     if found.is_empty() {
         return Ok(parsed);
@@ -141,6 +136,26 @@ pub fn parse_polar_toml(text: &str, file: &Path) -> Result<PolarFile, PolarFileE
         })
         .collect();
     Err(fail(problems))
+}
+
+/// A problem from the TOML reader, with the line and the key written on it.
+pub(super) fn syntax_problem(text: &str, e: &toml::de::Error) -> Problem {
+    let start = e.span().map(|s| s.start);
+    let key = start
+        .and_then(|s| {
+            text[..s.min(text.len())]
+                .rsplit('\n')
+                .next()
+                .map(str::to_string)
+        })
+        .and_then(|before| before.split_once('=').map(|(k, _)| k.trim().to_string()))
+        .filter(|k| !k.is_empty() && !k.starts_with('['))
+        .unwrap_or_default();
+    Problem {
+        line: start.map(|s| line_of(text, s)),
+        item: key,
+        message: e.message().trim_end().to_string(),
+    }
 }
 
 /// Byte offset where the item at `path` starts, or its nearest ancestor that exists.

@@ -262,7 +262,7 @@ fn render_polar<DB: DrawingBackend>(
         pts.dedup_by(|b, a| (b.0 - a.0).abs() <= 2 && (b.1 - a.1).abs() <= 2);
         if curve.dashed {
             root.draw(&DashedPathElement::new(
-                pts.clone().into_iter(),
+                pts.clone(),
                 8,
                 6,
                 colour.stroke_width(2),
@@ -387,7 +387,7 @@ fn render_bound<DB: DrawingBackend>(
     let s_star = zone.s_star();
     chart
         .draw_series(std::iter::once(DashedPathElement::new(
-            vec![(s_star, 0.0), (s_star, 1.0)].into_iter(),
+            vec![(s_star, 0.0), (s_star, 1.0)],
             6,
             5,
             INK.stroke_width(1),
