@@ -390,3 +390,66 @@ fn bad_chamber_file_names_the_line() {
             "line {line}: sample_still.reverberation_time_s: has 3 values but bands_hz has 4"
         )));
 }
+
+#[test]
+fn hemispherical_data_use_area_weights_and_plot_the_plane_of_incidence() {
+    // 10° grid: the pole once, rings at 10° azimuth steps.
+    let mut polar = vec![0.0];
+    let mut azimuth = vec![0.0];
+    for k in 1..=9 {
+        for j in 0..36 {
+            polar.push(10.0 * f64::from(k));
+            azimuth.push(10.0 * f64::from(j));
+        }
+    }
+    let list = |v: &[f64]| {
+        let s: Vec<String> = v.iter().map(|x| format!("{x:.1}")).collect();
+        format!("[{}]", s.join(", "))
+    };
+    // 1 kHz uniform; 2 kHz a lobe towards the mirror direction (30°, 180°).
+    let lobe: Vec<f64> = polar
+        .iter()
+        .zip(&azimuth)
+        .map(|(&t, &a)| {
+            let (t, a) = (f64::to_radians(t), f64::to_radians(a));
+            let v = [t.sin() * a.cos(), t.sin() * a.sin(), t.cos()];
+            let m = [-(30f64.to_radians().sin()), 0.0, 30f64.to_radians().cos()];
+            let c = v[0] * m[0] + v[1] * m[1] + v[2] * m[2];
+            10.0 * (0.05 + c.max(0.0).powi(8)).log10()
+        })
+        .collect();
+    let mut text = String::from(
+        "name = \"hemisphere test\"\n[geometry]\narrangement = \"hemisphere\"\nsample_width_m = 2.0\nsource_distance_m = 10.0\nreceiver_distance_m = 5.0\nzone_half_width_deg = 15.0\n",
+    );
+    for (band, levels) in [(1000.0, vec![0.0; polar.len()]), (2000.0, lobe)] {
+        text += &format!(
+            "\n[[responses]]\nband_hz = {band:.1}\nincidence_deg = 30.0\nincidence_azimuth_deg = 0.0\nreceiver_deg = {}\nreceiver_azimuth_deg = {}\nlevel_db = {}\n",
+            list(&polar),
+            list(&azimuth),
+            list(&levels)
+        );
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("hemi.toml");
+    std::fs::write(&path, text).unwrap();
+    let out = polaray()
+        .args(["polar", path.to_str().unwrap(), "--json"])
+        .assert()
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    let v: serde_json::Value = serde_json::from_slice(&out).unwrap();
+    let uniform = &v["bands"][0];
+    // ISO 17497-2 clause 8: a uniform response is fully diffuse (area-weighted),
+    // and it sits at s* where the weighted bound is 1 (polar::bound derivation).
+    assert!((uniform["d"].as_f64().unwrap() - 1.0).abs() < 1e-12);
+    assert!((uniform["d_max"].as_f64().unwrap() - 1.0).abs() < 1e-12);
+    let lobe = &v["bands"][1];
+    assert!(lobe["d"].as_f64().unwrap() < 0.5);
+    assert!(lobe["d"].as_f64().unwrap() <= lobe["d_max"].as_f64().unwrap() + 1e-12);
+    assert!(dir
+        .path()
+        .join("hemi-polar/polar-2000hz-inc30-az0.png")
+        .exists());
+}

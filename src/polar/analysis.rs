@@ -221,6 +221,16 @@ pub fn analyze(
             ));
         }
     }
+    if arrangement == Arrangement::Plane {
+        for r in responses {
+            if unevenly_spaced(&r.receiver_deg) {
+                warnings.push(format!(
+                    "band {} Hz, incidence {}°: receivers are unevenly spaced, but single-plane d counts every receiver equally (ISO 17497-2); d is biased towards densely sampled directions",
+                    r.band_hz, r.incidence_deg
+                ));
+            }
+        }
+    }
     let mut band_list: Vec<f64> = bands.iter().map(|c| c.band_hz).collect();
     band_list.dedup();
     let incidence_set = |band: f64| -> Vec<(f64, Option<f64>)> {
@@ -278,6 +288,17 @@ pub fn analyze(
         random_incidence,
         warnings,
     })
+}
+
+/// Whether sorted receiver angles have steps differing by more than 1 %.
+fn unevenly_spaced(angle_deg: &[f64]) -> bool {
+    let mut a = angle_deg.to_vec();
+    a.sort_by(f64::total_cmp);
+    let steps: Vec<f64> = a.windows(2).map(|w| w[1] - w[0]).collect();
+    let (lo, hi) = steps.iter().fold((f64::INFINITY, 0.0f64), |(lo, hi), &s| {
+        (lo.min(s), hi.max(s))
+    });
+    steps.len() > 1 && hi - lo > 0.01 * hi
 }
 
 fn zone_why(size: &ZoneSize) -> String {
