@@ -8,6 +8,17 @@ use std::path::Path;
 use super::data::PolarResponse;
 use super::load::{PolarFileError, Problem};
 
+/// A flat reference that does not match the sample's CSV table.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum CsvReferenceError {
+    /// Other receiver angles.
+    #[error("the reference has other receiver angles than the sample; measure both on the same receivers")]
+    Angles,
+    /// A band missing from the reference.
+    #[error("the reference has no {0} Hz column; give the reference in every band of the sample")]
+    MissingBand(f64),
+}
+
 /// A polar response table read from CSV.
 #[derive(Clone, Debug, PartialEq)]
 pub struct PolarCsv {
@@ -182,10 +193,10 @@ impl PolarCsv {
         &self,
         incidence_deg: f64,
         reference: Option<&PolarCsv>,
-    ) -> Result<Vec<PolarResponse>, String> {
+    ) -> Result<Vec<PolarResponse>, CsvReferenceError> {
         if let Some(r) = reference {
             if r.angle_deg != self.angle_deg {
-                return Err("the reference has other receiver angles than the sample; measure both on the same receivers".into());
+                return Err(CsvReferenceError::Angles);
             }
         }
         self.bands_hz
@@ -195,9 +206,11 @@ impl PolarCsv {
                 let reference_level_db = match reference {
                     None => None,
                     Some(r) => {
-                        let i = r.bands_hz.iter().position(|&f| f == band_hz).ok_or_else(|| {
-                            format!("the reference has no {band_hz} Hz column; give the reference in every band")
-                        })?;
+                        let i = r
+                            .bands_hz
+                            .iter()
+                            .position(|&f| f == band_hz)
+                            .ok_or(CsvReferenceError::MissingBand(band_hz))?;
                         Some(r.level_db[i].clone())
                     }
                 };

@@ -11,6 +11,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::bound::{ZoneSize, ZoneSizeError};
+use super::zone::ZoneGeometry;
 use crate::output::{finish_atomic, temp_sibling};
 use crate::plot::{ensure_fonts, series_colour, CHART_SIZE, FONT, GRID, INK, PAPER, SHADE};
 
@@ -328,6 +329,17 @@ pub fn draw_bound_chart(
 ) -> Result<(), PlotError> {
     zone.check()?;
     write_chart!(path, |root| render_bound(root, title, zone, points))
+}
+
+/// [`draw_bound_chart`] for a goniometer arrangement (e.g. the default check
+/// geometry of [`ZoneGeometry::default`]), for material (s, d) pairs.
+pub fn draw_bound_chart_for_geometry(
+    path: &Path,
+    title: &str,
+    geometry: &ZoneGeometry,
+    points: &[BoundPoint],
+) -> Result<(), PlotError> {
+    draw_bound_chart(path, title, &geometry.size(), points)
 }
 
 fn render_bound<DB: DrawingBackend>(
