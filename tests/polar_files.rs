@@ -85,7 +85,7 @@ fn zone_interval_reaches_halfway_to_neighbours() {
     let a: Vec<f64> = (0..37).map(|i| -90.0 + 5.0 * f64::from(i)).collect();
     let z: Vec<bool> = a.iter().map(|t| t.abs() <= 10.0).collect();
     assert_eq!(zone_interval_deg(&a, &z), Some((-12.5, 12.5)));
-    assert_eq!(zone_interval_deg(&a, &vec![false; 37]), None);
+    assert_eq!(zone_interval_deg(&a, &[false; 37]), None);
 }
 
 #[test]
