@@ -281,3 +281,18 @@ fn receiver_outside_the_room() {
         ],
     );
 }
+
+#[test]
+fn impossible_scattering_diffusion_pair() {
+    // reference.md §3: with s = 0.1 the bound is d_max = 0.143 (37 receivers,
+    // 5 in the zone), so d = 0.6 at 125 Hz is refused, and only that band.
+    rejects(
+        "tests/data/rooms/impossible-diffusion.toml",
+        &["materials.panel", "125 Hz", "exceeds", "0.143"],
+    );
+    let out = check("tests/data/rooms/impossible-diffusion.toml")
+        .get_output()
+        .clone();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(!stderr.contains("250 Hz"), "{stderr}");
+}

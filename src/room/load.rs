@@ -112,8 +112,11 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
         }
     }
     if b.problems.is_empty() {
-        let pair_problems =
-            pairs::check_material_pairs(&materials, &settings.bands, pairs::material_pair_bound);
+        let pair_problems = pairs::check_material_pairs(
+            &materials,
+            &settings.bands,
+            &crate::polar::zone::ZoneGeometry::default(),
+        );
         b.problems.extend(pair_problems);
     }
 

@@ -1,11 +1,14 @@
 //! Consistency of each material's (scattering, diffusion) pairs.
 //!
 //! A diffusion coefficient cannot exceed what the scattering coefficient
-//! allows (reference sheet §3: d ≤ d_max(min(s, s*))). The bound itself is
-//! computed elsewhere (the polar-data work); this module is the one place the
-//! loader asks it, so wiring it in is a change to [`material_pair_bound`] only.
+//! allows (reference sheet §3: d ≤ d_max(min(s, s*))). The bound and its error
+//! text live in [`crate::polar::bound`]; the loader asks it here, with the
+//! default goniometer geometry, so `polaray check`, `polaray run` and the
+//! `bounded` law refuse the same pairs with the same words.
 
 use crate::bands::BandSet;
+use crate::polar::bound::{check_material_pair, BoundViolation};
+use crate::polar::zone::ZoneGeometry;
 
 use super::Material;
 
@@ -13,36 +16,43 @@ use super::Material;
 /// given to two decimals; common practice, no source).
 pub const PAIR_TOLERANCE: f64 = 0.005;
 
-/// The largest diffusion coefficient consistent with scattering coefficient
-/// `s`, or `None` where no bound is known.
-///
-/// Not wired yet: returns `None` for every `s`, so no pair is rejected until the
-/// bound function of the polar-data work is connected here.
-#[must_use]
-pub fn material_pair_bound(_s: f64) -> Option<f64> {
-    None
-}
-
 /// Problems for every band of every material whose diffusion coefficient lies
-/// above `max_diffusion(scattering)` by more than [`PAIR_TOLERANCE`]. Materials
-/// without diffusion data are skipped.
+/// above the bound for its scattering coefficient by more than
+/// [`PAIR_TOLERANCE`], checked with `geometry`. Materials without diffusion
+/// data are skipped.
 pub fn check_material_pairs(
     materials: &[Material],
     bands: &BandSet,
-    max_diffusion: impl Fn(f64) -> Option<f64>,
+    geometry: &ZoneGeometry,
 ) -> Vec<String> {
     let mut problems = Vec::new();
     for m in materials {
         let Some(d) = m.diffusion else { continue };
         for (b, hz) in bands.centres_hz().iter().enumerate() {
             let s = m.scattering[b];
-            if let Some(limit) = max_diffusion(s) {
-                if d[b] > limit + PAIR_TOLERANCE {
-                    problems.push(format!(
-                        "materials.{}: at {hz} Hz diffusion {:.3} is impossible with scattering {:.3} (at most {:.3}); lower the diffusion or raise the scattering coefficient",
-                        m.name, d[b], s, limit
-                    ));
-                }
+            // The tolerance forgives rounding of d, never a value out of range.
+            let d_checked = if (0.0..=1.0).contains(&d[b]) {
+                (d[b] - PAIR_TOLERANCE).max(0.0)
+            } else {
+                d[b]
+            };
+            match check_material_pair(s, d_checked, geometry) {
+                Ok(()) => {}
+                Err(BoundViolation::Exceeds { d_max, .. }) => problems.push(format!(
+                    "materials.{}: at {hz} Hz {}",
+                    m.name,
+                    BoundViolation::Exceeds {
+                        s,
+                        d: d[b],
+                        s_used: s.min(geometry.size().s_star()),
+                        s_star: geometry.size().s_star(),
+                        d_max,
+                        excess: d[b] - d_max,
+                        receivers: geometry.size().receivers,
+                        zone_receivers: geometry.size().zone_receivers,
+                    }
+                )),
+                Err(e) => problems.push(format!("materials.{}: at {hz} Hz {e}", m.name)),
             }
         }
     }
@@ -55,23 +65,25 @@ mod tests {
     use crate::bands::Bands;
 
     #[test]
-    fn pairs_above_a_bound_are_reported_per_band() {
+    fn pairs_above_the_bound_are_reported_per_band() {
+        // reference.md §3 with the default geometry (37 receivers, 5 in the zone):
+        // d_max(0.1) = 0.143 (computed from w(s) = 1/M + M/(M_s(M−M_s))(s−s*)²),
+        // so d = 0.6 at s = 0.1 is impossible; at s = 0.5, d_max = 67/148 = 0.453,
+        // so d = 0.4 passes.
         let bands = BandSet::new(&[500, 1000]).unwrap();
         let m = Material {
             name: "panel".into(),
             absorption: Bands::from_slice(&[0.1, 0.1]),
             scattering: Bands::from_slice(&[0.1, 0.5]),
-            diffusion: Some(Bands::from_slice(&[0.6, 0.6])),
+            diffusion: Some(Bands::from_slice(&[0.6, 0.4])),
             polar_file: None,
         };
-        // An invented bound d_max(s) = s + 0.2, only to exercise the check.
-        let p = check_material_pairs(&[m], &bands, |s| Some(s + 0.2));
-        assert_eq!(p.len(), 1);
+        let p = check_material_pairs(&[m], &bands, &ZoneGeometry::default());
+        assert_eq!(p.len(), 1, "{p:?}");
         assert!(
-            p[0].contains("materials.panel") && p[0].contains("500 Hz"),
+            p[0].contains("materials.panel") && p[0].contains("500 Hz") && p[0].contains("exceeds"),
             "{}",
             p[0]
         );
-        assert!(material_pair_bound(0.3).is_none());
     }
 }
