@@ -58,9 +58,12 @@ pub struct Args {
     #[arg(long, value_enum, default_value_t)]
     pub incidence_weighting: IncidenceWeighting,
     /// Level range of the polar charts, dB below the highest level.
-    #[arg(long, default_value_t = 40.0)]
+    #[arg(long, default_value_t = DEFAULT_RANGE_DB)]
     pub range_db: f64,
 }
+
+/// Default level range of the polar charts, dB.
+const DEFAULT_RANGE_DB: f64 = 40.0;
 
 /// Runs the command.
 pub fn run(args: Args) -> anyhow::Result<ExitCode> {
@@ -115,6 +118,28 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         println!("wrote {} files to {}", files.len(), out_dir.display());
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// Writes the polar charts (PNG and SVG per band and incidence) and the d-versus-s
+/// bound charts of `data` into `dir`, with the zone its geometry implies and the
+/// default level range; used by `polaray profile --plots`.
+pub fn write_file_charts(
+    data: &polaray::polar::PolarFile,
+    dir: &Path,
+) -> anyhow::Result<Vec<PathBuf>> {
+    let input = Input {
+        name: data.name.clone(),
+        arrangement: data.geometry.arrangement,
+        zone: ZoneRule::from_geometry(&data.geometry),
+        responses: data.responses.clone(),
+    };
+    let analysis = analyze(
+        input.arrangement,
+        &input.zone,
+        &input.responses,
+        IncidenceWeighting::default(),
+    )?;
+    write_charts(dir, &input, &analysis, DEFAULT_RANGE_DB)
 }
 
 /// The JSON report: printed with `--json`, written as `coefficients.json`.

@@ -81,13 +81,10 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-/// Draws the polar plots of a predicted file into `dir`. The plot function
-/// belongs to the polar module (`polar::plot`); until it is merged this says
-/// so instead of drawing.
+/// Draws the polar and bound charts of a predicted file into `dir`, with the
+/// same chart code as `polaray polar`.
 fn write_plots(polar: &PolarFile, dir: &Path) -> anyhow::Result<()> {
-    let _ = polar;
-    anyhow::bail!(
-        "{}: polar plots are not available in this build; the polar data file was written",
-        dir.display()
-    )
+    let files = super::polar::write_file_charts(polar, dir)?;
+    println!("wrote {} charts to {}", files.len(), dir.display());
+    Ok(())
 }
