@@ -6,12 +6,14 @@
 //! both away from the surface. One law instance serves one material, so it
 //! includes the absorption: the weights it returns already hold the 1 − α factor.
 
+pub mod measured;
 pub mod split;
 
 use glam::DVec3;
 
 use crate::bands::Bands;
 
+pub use measured::MeasuredPolarLaw;
 pub use split::SplitLaw;
 
 /// Which part of a law produced a sample.
@@ -34,7 +36,9 @@ pub struct LawSample {
     /// sample), absorption included. Its expectation over samples is 1 − α.
     pub weight: Bands,
     /// Probability density of `wi` per steradian for non-mirror lobes, times the
-    /// probability of having chosen a non-mirror lobe; `None` for the mirror lobe.
+    /// probability of having chosen a non-mirror lobe; `None` for the mirror lobe
+    /// and other lobes without a density per steradian (the reflection cone of
+    /// an extruded profile in [`MeasuredPolarLaw`]).
     pub pdf: Option<f64>,
     /// The lobe that fired.
     pub lobe: Lobe,
