@@ -1,6 +1,9 @@
 //! Tests of the `polar` law (measured polar responses), on the invented polar
 //! files in tests/data/law (written by tests/data/law/generate.py).
 
+// Band loops index several parallel per-band arrays; ranges read more clearly here.
+#![allow(clippy::needless_range_loop)]
+
 use std::f64::consts::{FRAC_PI_2, PI, TAU};
 use std::path::{Path, PathBuf};
 

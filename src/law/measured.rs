@@ -281,7 +281,7 @@ impl MeasuredPolarLaw {
 
     /// Extruded profile only: reflected energy per radian of the in-plane
     /// angle of the scattered part, per band. Integrated over −π/2..π/2 it
-    /// gives (1 − α)(s). Zero for other uses.
+    /// gives (1 − α) s. Zero for other uses.
     #[must_use]
     pub fn eval_in_plane(&self, wo: DVec3, angle_rad: f64) -> Bands {
         if self.usage != PolarUse::Extruded {
@@ -452,7 +452,7 @@ impl ReflectionLaw for MeasuredPolarLaw {
             .map(|b| self.scattering[b] * g[b])
             .sum::<f64>()
             / self.bands as f64;
-        if !(q > 0.0) {
+        if q.is_nan() || q <= 0.0 {
             return None;
         }
         let weight = Bands(std::array::from_fn(|b| {

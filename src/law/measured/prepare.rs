@@ -437,6 +437,9 @@ fn scattered_energy(
     Ok(energy)
 }
 
+/// Responses pooled at one |ψ|: key (degrees), folded receivers, first signed incidence.
+type Pooled = (f64, Vec<(f64, f64, f64)>, f64);
+
 /// Everything the law keeps of one room band.
 pub(super) struct PreparedBand {
     /// The scattered pattern; `None` when the band's scattering coefficient is 0.
@@ -532,7 +535,7 @@ pub(super) fn prepare_band(
         PolarUse::Rotational => {
             // Fold each response about the normal; responses at ±ψ pool their
             // normalized receivers (same |θ| averaged by the table).
-            let mut pooled: Vec<(f64, Vec<(f64, f64, f64)>, f64)> = Vec::new();
+            let mut pooled: Vec<Pooled> = Vec::new();
             for p in &responses {
                 let e = scattered_energy(file, &polar.geometry, p, false)?;
                 let total: f64 = e.iter().sum();

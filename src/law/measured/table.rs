@@ -264,7 +264,8 @@ impl SphereTable {
         })
     }
 
-    /// Draws `(cos θ, φ_rad)` from three uniform numbers (cell, cos θ, φ):
+    /// Draws `(cos θ, φ_rad)` from two uniform numbers (the first picks the
+    /// cell and, remapped, gives cos θ; the second gives φ):
     /// the cell by its probability, then uniformly in solid angle within it.
     #[must_use]
     pub fn sample(&self, u_cell: f64, u_phi: f64) -> (f64, f64) {
