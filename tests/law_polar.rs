@@ -663,3 +663,46 @@ fn bad_polar_data_give_errors_naming_file_and_band() {
         .to_string()
         .contains("material 'diffuser' has no polar_file"));
 }
+
+#[test]
+fn geometric_zone_follows_the_image_source() {
+    // Without zone_half_width_deg the zone holds the receivers the image
+    // source reaches through the sample (reference.md §2). Sample 1.2 m,
+    // source 10 m, receivers 5 m, normal incidence: the line from the image
+    // (0, −10) to the receiver at θ crosses z = 0 at x = 50 sin θ/(5 cos θ + 10):
+    // 0.58 m at 10° (inside the ±0.6 m sample), 0.87 m at 15° (outside); so
+    // −10°..10° are replaced, linearly between the receivers at ±15°.
+    let path = data("plane_octave.toml");
+    let mut polar = load_polar_file(&path).unwrap();
+    polar.geometry.zone_half_width_deg = None;
+    let (law, _) = MeasuredPolarLaw::new(
+        &material(&[0.0], &[1.0]),
+        &BandSet::new(&[1000]).unwrap(),
+        &polar,
+        &path,
+        true,
+    )
+    .unwrap();
+    let r = polar
+        .responses
+        .iter()
+        .find(|r| r.band_hz == 1000.0 && r.incidence_deg == 0.0)
+        .unwrap();
+    let e = |i: usize| 10f64.powf(r.level_db[i] / 10.0);
+    let wo = DVec3::Z;
+    let g = |deg: f64| law.eval_in_plane(wo, f64::to_radians(deg))[0];
+    // Receivers: index 18 is 0°, 15 is −15°, 21 is 15°.
+    let ratio_15 = g(15.0) / e(21);
+    for (k, deg) in [(16, -10.0), (17, -5.0), (18, 0.0), (19, 5.0), (20, 10.0)] {
+        let f = (deg + 15.0) / 30.0;
+        let want = (e(15) + f * (e(21) - e(15))) * ratio_15;
+        assert!(
+            (g(deg) - want).abs() < 1e-9 * want,
+            "{deg}°: {} vs {want}",
+            g(deg)
+        );
+        assert!(e(k) > 1.5 * e(15).max(e(21)) || deg.abs() > 5.0);
+    }
+    // 20° keeps its own level.
+    assert!((g(20.0) / e(22) - ratio_15).abs() < 1e-9 * ratio_15);
+}
