@@ -21,6 +21,10 @@ pub struct Args {
     /// Reflection law for every surface.
     #[arg(long, default_value = "split", value_parser = clap::builder::PossibleValuesParser::new(LawKind::NAME_LIST))]
     pub law: String,
+    /// Law for materials that lack the data `--law` needs (no polar file, no
+    /// diffusion); without it such a material is an error. Each fallback is listed.
+    #[arg(long, value_name = "LAW", value_parser = clap::builder::PossibleValuesParser::new(LawKind::NAME_LIST))]
+    pub fallback: Option<String>,
     /// Rays per source (default: the room file's `rays`).
     #[arg(long)]
     pub rays: Option<usize>,
@@ -44,6 +48,11 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     }
     let law = LawKind::from_str(&args.law)?;
     let mut options = TraceOptions::from_room(&room, law);
+    options.fallback = args
+        .fallback
+        .as_deref()
+        .map(LawKind::from_str)
+        .transpose()?;
     if let Some(r) = args.rays {
         options.rays = r;
     }
@@ -54,7 +63,8 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         .out
         .unwrap_or_else(|| PathBuf::from(format!("{}-results", report::file_safe(&room.name))));
 
-    let total_rays = options.rays as u64 * room.sources.len() as u64;
+    let passes = options.law.band_groups(&room).len() as u64;
+    let total_rays = options.rays as u64 * room.sources.len() as u64 * passes;
     let show = !args.quiet && std::io::stderr().is_terminal() && std::io::stdout().is_terminal();
     let bar = if show {
         let pb = ProgressBar::new(total_rays);
@@ -73,6 +83,9 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
 
     let mut warnings = loaded.warnings.clone();
     warnings.extend(result.warnings.iter().cloned());
+    for f in &result.fallbacks {
+        eprintln!("fallback: {f}");
+    }
     for w in &result.warnings {
         eprintln!("warning: {w}");
     }

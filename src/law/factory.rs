@@ -1,14 +1,18 @@
-//! Choosing a reflection law by name and building one instance per material.
+//! Choosing a reflection law by name and building the instances a room needs.
 //!
-//! The tracer only sees `Vec<Box<dyn ReflectionLaw>>`, indexed like
-//! [`Room::materials`]. Adding a law means adding a [`LawKind`] variant, its
-//! name in [`LawKind::NAME_LIST`] and one arm in [`LawKind::build`]; the
-//! tracer loop does not change.
+//! The tracer only sees a [`RoomLaws`]: boxed laws plus, per surface, which
+//! law instance and which local frame to use. Adding a law means adding a
+//! [`LawKind`] variant, its name in [`LawKind::NAME_LIST`], one arm in
+//! [`LawKind::build`] and its key in [`LawKind::band_groups`]; the tracer loop
+//! does not change.
 
+use std::collections::HashMap;
 use std::fmt;
 use std::str::FromStr;
 
-use super::{ReflectionLaw, SplitLaw};
+use super::{MeasuredPolarLaw, ReflectionLaw, SplitLaw};
+use crate::bands::BandSet;
+use crate::polar::load_polar_file;
 use crate::room::{Material, Room};
 
 /// The reflection laws polaray can trace with.
@@ -17,6 +21,9 @@ use crate::room::{Material, Room};
 pub enum LawKind {
     /// Lambert split by the scattering coefficient ([`SplitLaw`]).
     Split,
+    /// Directions drawn from measured or predicted polar responses
+    /// ([`MeasuredPolarLaw`]); materials name a polar file.
+    Polar,
 }
 
 /// A law that cannot be chosen or built.
@@ -26,7 +33,7 @@ pub enum LawError {
     #[error("unknown reflection law `{0}`; choose one of: {list}", list = LawKind::NAME_LIST.join(", "))]
     Unknown(String),
     /// The material lacks data the law needs.
-    #[error("material `{material}`: the `{law}` law needs {missing}")]
+    #[error("material `{material}`: the `{law}` law needs {missing} (or run with `--fallback split` to trace such materials with the split law)")]
     MissingData {
         /// Material name.
         material: String,
@@ -35,43 +42,133 @@ pub enum LawError {
         /// What to add to the room file.
         missing: String,
     },
+    /// The material's data are unusable for the law.
+    #[error("material `{material}`: the `{law}` law cannot use its data: {reason}")]
+    BadData {
+        /// Material name.
+        material: String,
+        /// Law name.
+        law: &'static str,
+        /// What is wrong, naming the file where there is one.
+        reason: String,
+    },
+}
+
+/// The law instances of one room for one group of bands.
+pub struct RoomLaws {
+    /// Law instances.
+    pub laws: Vec<Box<dyn ReflectionLaw>>,
+    /// Index into `laws` per surface of the room.
+    pub surface_law: Vec<u32>,
+    /// Materials traced with the fallback law instead, with the reason.
+    pub fallbacks: Vec<String>,
+    /// Warnings from building the laws (e.g. incidences clamped to the data).
+    pub warnings: Vec<String>,
 }
 
 impl LawKind {
     /// Every law name accepted by `--law`, in the order of the variants.
-    pub const NAME_LIST: &'static [&'static str] = &["split"];
+    pub const NAME_LIST: &'static [&'static str] = &["split", "polar"];
 
     /// The name given to `--law`.
     #[must_use]
     pub fn name(self) -> &'static str {
         match self {
             Self::Split => "split",
+            Self::Polar => "polar",
         }
     }
 
     /// The law of one material serving the band indices in `active` (other
-    /// bands get weight 0).
+    /// bands get weight 0). `extruded` says the surface gives a profile axis
+    /// (then the tracer's local +X runs along it). Returns the law and its warnings.
     pub fn build(
         self,
         material: &Material,
+        bands: &BandSet,
         active: &[usize],
-    ) -> Result<Box<dyn ReflectionLaw>, LawError> {
+        extruded: bool,
+    ) -> Result<(Box<dyn ReflectionLaw>, Vec<String>), LawError> {
         match self {
-            Self::Split => Ok(Box::new(SplitLaw::for_bands(material, active))),
+            Self::Split => Ok((Box::new(SplitLaw::for_bands(material, active)), Vec::new())),
+            Self::Polar => {
+                let Some(file) = material.polar_file.as_deref() else {
+                    return Err(LawError::MissingData {
+                        material: material.name.clone(),
+                        law: "polar",
+                        missing: "a polar data file (`polar = \"file.polar.toml\"` in its table)"
+                            .into(),
+                    });
+                };
+                let bad = |reason: String| LawError::BadData {
+                    material: material.name.clone(),
+                    law: "polar",
+                    reason,
+                };
+                let data = load_polar_file(file).map_err(|e| bad(e.to_string()))?;
+                let (law, warnings) =
+                    MeasuredPolarLaw::for_bands(material, bands, active, &data, file, extruded)
+                        .map_err(|e| bad(e.to_string()))?;
+                let warnings = warnings
+                    .into_iter()
+                    .map(|w| format!("material `{}`: {w}", material.name))
+                    .collect();
+                Ok((Box::new(law), warnings))
+            }
         }
     }
 
-    /// One law per material of `room` for the bands in `active`, in the order
-    /// of [`Room::materials`].
+    /// The laws of `room` for the bands in `active`: one instance per
+    /// (material, extruded or not) pair that some surface uses. With
+    /// `fallback`, a material lacking the data this law needs is traced with
+    /// the fallback law and listed in [`RoomLaws::fallbacks`].
     pub fn build_for_room(
         self,
         room: &Room,
         active: &[usize],
-    ) -> Result<Vec<Box<dyn ReflectionLaw>>, LawError> {
-        room.materials
-            .iter()
-            .map(|m| self.build(m, active))
-            .collect()
+        fallback: Option<LawKind>,
+    ) -> Result<RoomLaws, LawError> {
+        let bands = &room.settings.bands;
+        let mut out = RoomLaws {
+            laws: Vec::new(),
+            surface_law: Vec::with_capacity(room.surfaces.len()),
+            fallbacks: Vec::new(),
+            warnings: Vec::new(),
+        };
+        let mut index: HashMap<(usize, bool), u32> = HashMap::new();
+        for surface in &room.surfaces {
+            let key = (surface.material, surface.profile_axis.is_some());
+            if let Some(&i) = index.get(&key) {
+                out.surface_law.push(i);
+                continue;
+            }
+            let material = &room.materials[surface.material];
+            let built = match self.build(material, bands, active, key.1) {
+                Err(LawError::MissingData { missing, .. }) if fallback.is_some() => {
+                    let other = fallback.unwrap_or(Self::Split);
+                    let note = format!(
+                        "material `{}` lacks {missing}; traced with the `{other}` law",
+                        material.name
+                    );
+                    if !out.fallbacks.contains(&note) {
+                        out.fallbacks.push(note);
+                    }
+                    other.build(material, bands, active, key.1)?
+                }
+                other => other?,
+            };
+            let (law, warnings) = built;
+            for w in warnings {
+                if !out.warnings.contains(&w) {
+                    out.warnings.push(w);
+                }
+            }
+            let i = out.laws.len() as u32;
+            out.laws.push(law);
+            index.insert(key, i);
+            out.surface_law.push(i);
+        }
+        Ok(out)
     }
 
     /// Groups of band indices that can share one ray: bands whose direction
@@ -84,12 +181,14 @@ impl LawKind {
     #[must_use]
     pub fn band_groups(self, room: &Room) -> Vec<Vec<usize>> {
         let bands = room.settings.bands.len();
+        if self == Self::Polar {
+            // Measured patterns differ from band to band.
+            return (0..bands).map(|b| vec![b]).collect();
+        }
         let key = |b: usize| -> Vec<u64> {
             room.materials
                 .iter()
-                .map(|m| match self {
-                    Self::Split => m.scattering[b].to_bits(),
-                })
+                .map(|m| m.scattering[b].to_bits())
                 .collect()
         };
         let mut groups: Vec<(Vec<u64>, Vec<usize>)> = Vec::new();
@@ -110,6 +209,7 @@ impl FromStr for LawKind {
     fn from_str(s: &str) -> Result<Self, Self::Err> {
         match s {
             "split" => Ok(Self::Split),
+            "polar" => Ok(Self::Polar),
             other => Err(LawError::Unknown(other.to_string())),
         }
     }

@@ -7,13 +7,15 @@
 //! includes the absorption: the weights it returns already hold the 1 − α factor.
 
 pub mod factory;
+pub mod measured;
 pub mod split;
 
 use glam::DVec3;
 
 use crate::bands::Bands;
 
-pub use factory::{LawError, LawKind};
+pub use factory::{LawError, LawKind, RoomLaws};
+pub use measured::MeasuredPolarLaw;
 pub use split::SplitLaw;
 
 /// Which part of a law produced a sample.
@@ -36,7 +38,9 @@ pub struct LawSample {
     /// sample), absorption included. Its expectation over samples is 1 − α.
     pub weight: Bands,
     /// Probability density of `wi` per steradian for non-mirror lobes, times the
-    /// probability of having chosen a non-mirror lobe; `None` for the mirror lobe.
+    /// probability of having chosen a non-mirror lobe; `None` for the mirror lobe
+    /// and other lobes without a density per steradian (the reflection cone of
+    /// an extruded profile in [`MeasuredPolarLaw`]).
     pub pdf: Option<f64>,
     /// The lobe that fired.
     pub lobe: Lobe,

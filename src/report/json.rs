@@ -53,6 +53,8 @@ pub struct RoomReport {
 pub struct SettingsReport {
     /// Reflection law.
     pub law: String,
+    /// Materials traced with the fallback law instead, with the reason.
+    pub law_fallbacks: Vec<String>,
     /// Rays per source.
     pub rays: usize,
     /// Seed.
@@ -218,6 +220,7 @@ impl RunReport {
             },
             settings: SettingsReport {
                 law: options.law.name().into(),
+                law_fallbacks: result.fallbacks.clone(),
                 rays: options.rays,
                 seed: options.seed,
                 bands_hz: result.bands.centres_hz().to_vec(),

@@ -27,6 +27,8 @@ impl Default for Roulette {
 pub struct TraceOptions {
     /// Reflection law used for every material.
     pub law: LawKind,
+    /// Law for materials that lack the data `law` needs; `None` makes that an error.
+    pub fallback: Option<LawKind>,
     /// Rays per source.
     pub rays: usize,
     /// Seed of all random streams.
@@ -49,6 +51,7 @@ impl TraceOptions {
         let s = &room.settings;
         Self {
             law,
+            fallback: None,
             rays: s.rays,
             seed: s.seed,
             duration_s: s

@@ -21,6 +21,9 @@ pub(super) struct Scene<'a> {
     pub normals: Vec<DVec3>,
     /// Law index per triangle.
     pub triangle_law: Vec<u32>,
+    /// Extrusion axis of the surface's diffuser profile per triangle, if any:
+    /// the local frame's +X then runs along it (what 1D polar data need).
+    pub triangle_axis: Vec<Option<DVec3>>,
     pub laws: Vec<Box<dyn ReflectionLaw>>,
     pub bands: usize,
     pub seed: u64,
@@ -155,7 +158,10 @@ impl Scene<'_> {
             if normal.dot(dir) > 0.0 {
                 normal = -normal;
             }
-            let frame = Frame::from_normal(normal);
+            let frame = match self.triangle_axis[triangle] {
+                Some(axis) => Frame::from_normal_and_tangent(normal, axis),
+                None => Frame::from_normal(normal),
+            };
             let wo = frame.to_local(-dir);
             let u_lobe = rng.uniform();
             let u_dir = rng.uniform2();

@@ -111,6 +111,8 @@ pub struct TraceResult {
     pub stats: TraceStats,
     /// Things the user should know (e.g. many lost rays), each naming what is concerned.
     pub warnings: Vec<String>,
+    /// Materials traced with the fallback law, with the reason.
+    pub fallbacks: Vec<String>,
 }
 
 impl TraceResult {

@@ -135,8 +135,18 @@ pub fn run_with_progress(
     // same stream in every pass (common random numbers across bands).
     let total_rays = options.rays as u64 * sources.len() as u64;
     let mut tally = Tally::default();
+    let mut fallbacks = Vec::new();
     for group in &groups {
-        let laws = options.law.build_for_room(room, group)?;
+        let laws = options.law.build_for_room(room, group, options.fallback)?;
+        for note in laws.fallbacks.iter().chain(&laws.warnings) {
+            if !fallbacks.contains(note) && !warnings.contains(note) {
+                if laws.fallbacks.contains(note) {
+                    fallbacks.push(note.clone());
+                } else {
+                    warnings.push(note.clone());
+                }
+            }
+        }
         let scene = build_scene(
             room, options, &bvh, laws, group, &sources, &receivers, &pairs, speed_m_s, air_per_m,
         );
@@ -190,6 +200,7 @@ pub fn run_with_progress(
         echograms: pairs,
         stats,
         warnings,
+        fallbacks,
     })
 }
 
@@ -234,7 +245,7 @@ fn build_scene<'a>(
     room: &Room,
     options: &TraceOptions,
     bvh: &'a Bvh,
-    laws: Vec<Box<dyn crate::law::ReflectionLaw>>,
+    laws: crate::law::RoomLaws,
     group: &[usize],
     sources: &[SourceInfo],
     receivers: &[ReceiverInfo],
@@ -255,7 +266,12 @@ fn build_scene<'a>(
     let triangle_law = room
         .triangles
         .iter()
-        .map(|t| room.surfaces[t.surface as usize].material as u32)
+        .map(|t| laws.surface_law[t.surface as usize])
+        .collect();
+    let triangle_axis = room
+        .triangles
+        .iter()
+        .map(|t| room.surfaces[t.surface as usize].profile_axis)
         .collect();
     let mut start_weight = Bands::ZERO;
     for &b in group {
@@ -269,7 +285,8 @@ fn build_scene<'a>(
         bvh,
         normals,
         triangle_law,
-        laws,
+        triangle_axis,
+        laws: laws.laws,
         bands,
         seed: options.seed,
         rays_per_source: options.rays,
