@@ -327,6 +327,11 @@ fn build_time() {
 fn main() {
     let scenes = scenes();
     let pool = two_threads();
+    // BVH_SUMMARY_ONLY=1 skips criterion's groups (quick comparisons while tuning).
+    if std::env::var_os("BVH_SUMMARY_ONLY").is_some() {
+        summary(&scenes, &pool);
+        return;
+    }
     let mut c = Criterion::default().configure_from_args();
     for scene in &scenes {
         bench_case(&mut c, scene, &Polaray(Bvh::build(&scene.triangles)), &pool);
