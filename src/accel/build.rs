@@ -1,0 +1,374 @@
+//! Construction: a binary tree by binned surface area heuristic (SAH), then
+//! collapsed into a 4-wide tree stored depth-first in one array.
+//!
+//! Binned SAH: Wald, "On fast Construction of SAH-based Bounding Volume
+//! Hierarchies", IEEE Symposium on Interactive Ray Tracing 2007. Collapsing a
+//! binary tree into a wide one by opening the child of largest surface area:
+//! common practice (e.g. Wald, Benthin & Boulos, "Getting Rid of Packets",
+//! IEEE RT 2008), no single source.
+
+use glam::DVec3;
+
+use super::node::{ChildRef, Node4, WideBox};
+use super::triangle::LeafTriangle;
+use crate::room::Triangle;
+
+/// Number of SAH bins per axis.
+const BINS: usize = 32;
+/// Leaves hold at most this many triangles (the 4-bit count in [`ChildRef`]
+/// allows up to 16). 4 measured best on the hall bench, by a few percent
+/// over 2, 8 and 16.
+const MAX_LEAF: usize = 4;
+/// SAH cost of visiting a node relative to one triangle test. Tuned on the
+/// hall benchmark (benches/bvh.rs).
+const NODE_COST: f64 = 1.0;
+/// SAH cost of one triangle test.
+const TRIANGLE_COST: f64 = 1.0;
+/// Below this depth SAH chooses splits; deeper, the object median on the
+/// longest axis halves the count, which bounds the depth (and so the
+/// traversal stack) for pathological inputs.
+const SAH_DEPTH: usize = 40;
+
+/// An axis-aligned box in f64.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Aabb {
+    pub(crate) min: DVec3,
+    pub(crate) max: DVec3,
+}
+
+impl Aabb {
+    const EMPTY: Self = Self {
+        min: DVec3::splat(f64::INFINITY),
+        max: DVec3::splat(f64::NEG_INFINITY),
+    };
+
+    fn grow(&mut self, other: &Self) {
+        self.min = self.min.min(other.min);
+        self.max = self.max.max(other.max);
+    }
+
+    fn grow_point(&mut self, p: DVec3) {
+        self.min = self.min.min(p);
+        self.max = self.max.max(p);
+    }
+
+    /// Half the surface area (enough for SAH ratios); 0 for an empty box.
+    fn half_area(&self) -> f64 {
+        let e = self.max - self.min;
+        if e.x < 0.0 {
+            0.0
+        } else {
+            e.x * e.y + e.y * e.z + e.z * e.x
+        }
+    }
+}
+
+/// A node of the intermediate binary tree.
+#[derive(Clone, Copy, Debug)]
+struct BinaryNode {
+    bounds: Aabb,
+    /// Leaf: first triangle in `order` and count. Inner: children indices.
+    kind: BinaryKind,
+}
+
+#[derive(Clone, Copy, Debug)]
+enum BinaryKind {
+    Leaf { start: usize, count: usize },
+    Inner { left: usize, right: usize },
+}
+
+/// Everything the build makes: the wide nodes (root at 0; empty when there
+/// are no triangles) and the triangles in leaf order.
+pub(crate) struct Built {
+    pub(crate) nodes: Vec<Node4>,
+    pub(crate) triangles: Vec<LeafTriangle>,
+}
+
+/// Builds the tree over `triangles`.
+///
+/// # Panics
+/// With more than 2^27 triangles (the leaf encoding's limit).
+pub(crate) fn build(triangles: &[Triangle]) -> Built {
+    assert!(
+        triangles.len() < ChildRef::MAX_START as usize,
+        "Bvh::build: {} triangles exceed the limit of {}",
+        triangles.len(),
+        ChildRef::MAX_START
+    );
+    if triangles.is_empty() {
+        return Built {
+            nodes: Vec::new(),
+            triangles: Vec::new(),
+        };
+    }
+    let prims: Vec<Prim> = triangles.iter().map(Prim::new).collect();
+    let mut order: Vec<u32> = (0..triangles.len() as u32).collect();
+    let mut binary = Vec::with_capacity(2 * triangles.len() / 2 + 1);
+    let mut builder = BinaryBuilder {
+        prims: &prims,
+        nodes: &mut binary,
+    };
+    let root = builder.build(&mut order, 0, 0);
+
+    let leaf_triangles = order
+        .iter()
+        .map(|&i| {
+            let t = &triangles[i as usize];
+            LeafTriangle {
+                vertices: t.vertices.map(|v| v.to_array()),
+                index: i,
+                surface: t.surface,
+            }
+        })
+        .collect();
+
+    let mut nodes = Vec::with_capacity(binary.len() / 2 + 1);
+    collapse(&binary, root, &mut nodes);
+    Built {
+        nodes,
+        triangles: leaf_triangles,
+    }
+}
+
+/// Bounds and centroid of one triangle.
+struct Prim {
+    bounds: Aabb,
+    centroid: DVec3,
+}
+
+impl Prim {
+    fn new(t: &Triangle) -> Self {
+        let mut bounds = Aabb::EMPTY;
+        for v in t.vertices {
+            bounds.grow_point(v);
+        }
+        Self {
+            bounds,
+            centroid: (bounds.min + bounds.max) * 0.5,
+        }
+    }
+}
+
+struct BinaryBuilder<'a> {
+    prims: &'a [Prim],
+    nodes: &'a mut Vec<BinaryNode>,
+}
+
+/// A chosen split: axis and the first bin of the right side, or a plain
+/// cut of the index range in the middle.
+enum Split {
+    Bin { axis: usize, bin: usize },
+    Median { axis: usize },
+}
+
+impl BinaryBuilder<'_> {
+    /// Builds the subtree over `order` (a sub-slice of the global order that
+    /// starts at `offset`) and returns its node index.
+    fn build(&mut self, order: &mut [u32], offset: usize, depth: usize) -> usize {
+        let mut bounds = Aabb::EMPTY;
+        let mut centroids = Aabb::EMPTY;
+        for &i in order.iter() {
+            let p = &self.prims[i as usize];
+            bounds.grow(&p.bounds);
+            centroids.grow_point(p.centroid);
+        }
+        let n = order.len();
+        let index = self.nodes.len();
+        self.nodes.push(BinaryNode {
+            bounds,
+            kind: BinaryKind::Leaf {
+                start: offset,
+                count: n,
+            },
+        });
+        if n == 1 {
+            return index;
+        }
+
+        let split = if depth < SAH_DEPTH {
+            match self.best_sah_split(order, &bounds, &centroids) {
+                Some((split, cost)) => {
+                    let leaf_cost = TRIANGLE_COST * n as f64;
+                    if cost >= leaf_cost && n <= MAX_LEAF {
+                        return index;
+                    }
+                    split
+                }
+                // All centroids coincide: no bin separates them.
+                None if n <= MAX_LEAF => return index,
+                None => Split::Median {
+                    axis: longest_axis(&centroids),
+                },
+            }
+        } else if n <= MAX_LEAF {
+            return index;
+        } else {
+            Split::Median {
+                axis: longest_axis(&centroids),
+            }
+        };
+
+        let mid = match split {
+            Split::Bin { axis, bin } => {
+                let lo = centroids.min[axis];
+                let scale = BINS as f64 / (centroids.max[axis] - lo);
+                let prims = self.prims;
+                partition(order, |i| {
+                    bin_of(prims[i as usize].centroid[axis], lo, scale) < bin
+                })
+            }
+            Split::Median { axis } => {
+                let prims = self.prims;
+                let mid = n / 2;
+                order.select_nth_unstable_by(mid, |&a, &b| {
+                    let ca = prims[a as usize].centroid[axis];
+                    let cb = prims[b as usize].centroid[axis];
+                    ca.total_cmp(&cb).then(a.cmp(&b))
+                });
+                mid
+            }
+        };
+        debug_assert!(mid > 0 && mid < n);
+        let (left_order, right_order) = order.split_at_mut(mid);
+        let left = self.build(left_order, offset, depth + 1);
+        let right = self.build(right_order, offset + mid, depth + 1);
+        self.nodes[index].kind = BinaryKind::Inner { left, right };
+        index
+    }
+
+    /// The cheapest binned split over the three axes with its SAH cost
+    /// (in triangle-test units, relative to the parent's area), or `None`
+    /// if the centroids are all at one point.
+    fn best_sah_split(
+        &self,
+        order: &[u32],
+        bounds: &Aabb,
+        centroids: &Aabb,
+    ) -> Option<(Split, f64)> {
+        let parent_area = bounds.half_area();
+        let mut best: Option<(Split, f64)> = None;
+        for axis in 0..3 {
+            let lo = centroids.min[axis];
+            let extent = centroids.max[axis] - lo;
+            if extent <= 0.0 {
+                continue;
+            }
+            let scale = BINS as f64 / extent;
+            let mut bin_bounds = [Aabb::EMPTY; BINS];
+            let mut bin_counts = [0usize; BINS];
+            for &i in order {
+                let p = &self.prims[i as usize];
+                let b = bin_of(p.centroid[axis], lo, scale);
+                bin_bounds[b].grow(&p.bounds);
+                bin_counts[b] += 1;
+            }
+            // Sweep from the right: area × count of bins b.. for each b.
+            let mut right_cost = [0.0; BINS];
+            let mut acc = Aabb::EMPTY;
+            let mut count = 0;
+            for b in (1..BINS).rev() {
+                acc.grow(&bin_bounds[b]);
+                count += bin_counts[b];
+                right_cost[b] = acc.half_area() * count as f64;
+            }
+            let mut acc = Aabb::EMPTY;
+            let mut count = 0;
+            for b in 1..BINS {
+                acc.grow(&bin_bounds[b - 1]);
+                count += bin_counts[b - 1];
+                if count == 0 || count == order.len() {
+                    continue;
+                }
+                let cost = NODE_COST
+                    + TRIANGLE_COST * (acc.half_area() * count as f64 + right_cost[b])
+                        / parent_area.max(f64::MIN_POSITIVE);
+                if best.as_ref().is_none_or(|(_, c)| cost < *c) {
+                    best = Some((Split::Bin { axis, bin: b }, cost));
+                }
+            }
+        }
+        best
+    }
+}
+
+/// Bin of a centroid coordinate, clamped into range.
+#[inline]
+fn bin_of(c: f64, lo: f64, scale: f64) -> usize {
+    (((c - lo) * scale) as usize).min(BINS - 1)
+}
+
+fn longest_axis(b: &Aabb) -> usize {
+    let e = b.max - b.min;
+    if e.x >= e.y && e.x >= e.z {
+        0
+    } else if e.y >= e.z {
+        1
+    } else {
+        2
+    }
+}
+
+/// Moves the items for which `left` holds to the front, keeping a
+/// deterministic order; returns how many there are.
+fn partition(order: &mut [u32], left: impl Fn(u32) -> bool) -> usize {
+    let mut i = 0;
+    let mut j = order.len();
+    while i < j {
+        if left(order[i]) {
+            i += 1;
+        } else {
+            j -= 1;
+            order.swap(i, j);
+        }
+    }
+    i
+}
+
+/// Writes the wide node for binary node `b` and its subtree depth-first;
+/// returns its index in `out`.
+fn collapse(binary: &[BinaryNode], b: usize, out: &mut Vec<Node4>) -> u32 {
+    let index = out.len();
+    out.push(Node4::EMPTY);
+
+    // Open the inner child of largest area until there are four children.
+    let mut children: Vec<usize> = match binary[b].kind {
+        BinaryKind::Inner { left, right } => vec![left, right],
+        BinaryKind::Leaf { .. } => vec![b],
+    };
+    while children.len() < 4 {
+        let candidate = children
+            .iter()
+            .enumerate()
+            .filter(|(_, &c)| matches!(binary[c].kind, BinaryKind::Inner { .. }))
+            .max_by(|(_, &x), (_, &y)| {
+                binary[x]
+                    .bounds
+                    .half_area()
+                    .total_cmp(&binary[y].bounds.half_area())
+            })
+            .map(|(slot, _)| slot);
+        let Some(slot) = candidate else { break };
+        let BinaryKind::Inner { left, right } = binary[children[slot]].kind else {
+            unreachable!("filtered to inner nodes")
+        };
+        children[slot] = left;
+        children.insert(slot + 1, right);
+    }
+
+    let mut node = Node4::EMPTY;
+    for (slot, &c) in children.iter().enumerate() {
+        let bounds = binary[c].bounds;
+        node.set_box(slot, &WideBox::outward(bounds.min, bounds.max));
+        node.children[slot] = match binary[c].kind {
+            BinaryKind::Leaf { start, count } => ChildRef::leaf(start as u32, count as u32),
+            BinaryKind::Inner { .. } => ChildRef::EMPTY, // filled below
+        };
+    }
+    for (slot, &c) in children.iter().enumerate() {
+        if matches!(binary[c].kind, BinaryKind::Inner { .. }) {
+            node.children[slot] = ChildRef::inner(collapse(binary, c, out));
+        }
+    }
+    out[index] = node;
+    index as u32
+}
