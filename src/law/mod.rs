@@ -6,12 +6,14 @@
 //! both away from the surface. One law instance serves one material, so it
 //! includes the absorption: the weights it returns already hold the 1 − α factor.
 
+pub mod bounded;
 pub mod split;
 
 use glam::DVec3;
 
 use crate::bands::Bands;
 
+pub use bounded::{Adjustment, BoundedLaw, BoundedLawError, CalibrationArc, DiffusionRange};
 pub use split::SplitLaw;
 
 /// Which part of a law produced a sample.
