@@ -28,6 +28,8 @@ pub enum Command {
     Polar(commands::polar::Args),
     /// Predict the polar response of a candidate surface profile.
     Profile(commands::profile::Args),
+    /// Measure a material's reflection law on a virtual goniometer: polar response, s, d and the bound.
+    Gonio(commands::gonio::Args),
 }
 
 #[cfg(test)]

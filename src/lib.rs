@@ -10,6 +10,7 @@ pub mod accel;
 pub mod air;
 pub mod bands;
 pub mod geometry;
+pub mod gonio;
 pub mod law;
 pub mod metrics;
 pub mod output;

@@ -2,6 +2,7 @@
 
 pub mod analyze;
 pub mod check;
+pub mod gonio;
 pub mod polar;
 pub mod profile;
 pub mod run;
@@ -18,5 +19,6 @@ pub fn dispatch(command: Command) -> anyhow::Result<ExitCode> {
         Command::Analyze(a) => analyze::run(a),
         Command::Polar(a) => polar::run(a),
         Command::Profile(a) => profile::run(a),
+        Command::Gonio(a) => gonio::run(a),
     }
 }

@@ -6,6 +6,7 @@
 //! both away from the surface. One law instance serves one material, so it
 //! includes the absorption: the weights it returns already hold the 1 − α factor.
 
+pub mod bounded;
 pub mod factory;
 pub mod measured;
 pub mod split;
@@ -14,6 +15,7 @@ use glam::DVec3;
 
 use crate::bands::Bands;
 
+pub use bounded::{Adjustment, BoundedLaw, BoundedLawError, CalibrationArc, DiffusionRange};
 pub use factory::{LawError, LawKind, RoomLaws};
 pub use measured::MeasuredPolarLaw;
 pub use split::SplitLaw;

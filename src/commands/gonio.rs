@@ -1,0 +1,226 @@
+//! `polaray gonio`: measure a material's reflection law on the virtual goniometer.
+
+use std::fmt::Write as _;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use anyhow::{bail, Context};
+use serde::Serialize;
+
+use polaray::bands::BandSet;
+use polaray::gonio::{self, ArcGeometry, GonioReport, GonioRequest};
+use polaray::law::{Adjustment, BoundedLaw, ReflectionLaw, SplitLaw};
+use polaray::room::Material;
+
+/// Which law to measure.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
+pub enum LawChoice {
+    /// Lambert split by the scattering coefficient.
+    Split,
+    /// Mixed law bounded by scattering and diffusion coefficients.
+    Bounded,
+}
+
+/// Options of `polaray gonio`.
+#[derive(Debug, clap::Args)]
+#[command(group(clap::ArgGroup::new("source").required(true).args(["room", "material_file"])))]
+pub struct Args {
+    /// Room file (TOML) holding the material; use with --material.
+    #[arg(long, requires = "material")]
+    pub room: Option<PathBuf>,
+    /// Name of the material in the room file.
+    #[arg(long)]
+    pub material: Option<String>,
+    /// A one-material TOML file (bands_hz, absorption, scattering, diffusion).
+    #[arg(long, conflicts_with = "room")]
+    pub material_file: Option<PathBuf>,
+    /// Reflection law to measure.
+    #[arg(long, value_enum)]
+    pub law: LawChoice,
+    /// Source angle from the normal, degrees (the mirror receiver is at minus this).
+    #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
+    pub incidence_deg: f64,
+    /// Reflections to fire.
+    #[arg(long, default_value_t = 1_000_000)]
+    pub samples: u64,
+    /// Seed of the random streams.
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Sample width across the measurement plane, m.
+    #[arg(long, default_value_t = 2.0)]
+    pub sample_width_m: f64,
+    /// Source and receiver distance from the sample centre, m.
+    #[arg(long, default_value_t = 10.0)]
+    pub distance_m: f64,
+    /// Integrate the law's eval over each receiver instead of firing samples
+    /// (noise-free; tests the law's eval, not its sampling).
+    #[arg(long)]
+    pub quadrature: bool,
+    /// Print the result as JSON on stdout instead of a table.
+    #[arg(long)]
+    pub json: bool,
+    /// Also write the virtual measurement as a polar data file (JSON) for `polaray polar`.
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+}
+
+#[derive(Serialize)]
+struct Output<'a> {
+    material: &'a str,
+    adjustments: &'a [Adjustment],
+    #[serde(flatten)]
+    report: &'a GonioReport,
+}
+
+fn load_material(args: &Args) -> anyhow::Result<(Material, BandSet)> {
+    if let Some(file) = &args.material_file {
+        let m = gonio::load_material_file(file)?;
+        return Ok((m.material, m.bands));
+    }
+    let (Some(room), Some(name)) = (&args.room, &args.material) else {
+        bail!("give --material-file FILE, or --room ROOM with --material NAME");
+    };
+    let loaded = polaray::room::load_room(room)?;
+    let room_data = loaded.room;
+    match room_data.materials.iter().find(|m| &m.name == name) {
+        Some(m) => Ok((m.clone(), room_data.settings.bands.clone())),
+        None => {
+            let names: Vec<&str> = room_data
+                .materials
+                .iter()
+                .map(|m| m.name.as_str())
+                .collect();
+            bail!(
+                "{}: no material named '{name}'; the room has: {}",
+                room.display(),
+                names.join(", ")
+            )
+        }
+    }
+}
+
+/// Runs the command.
+pub fn run(args: Args) -> anyhow::Result<ExitCode> {
+    let (material, bands) = load_material(&args)?;
+    let (law, adjustments): (Box<dyn ReflectionLaw>, Vec<Adjustment>) = match args.law {
+        LawChoice::Split => (Box::new(SplitLaw::new(&material, bands.len())), Vec::new()),
+        LawChoice::Bounded => {
+            let (law, adj) = BoundedLaw::new(&material, &bands)?;
+            (Box::new(law), adj)
+        }
+    };
+    for a in &adjustments {
+        eprintln!("warning: {a}");
+    }
+    let request = GonioRequest {
+        geometry: ArcGeometry {
+            sample_width_m: args.sample_width_m,
+            source_distance_m: args.distance_m,
+            receiver_distance_m: args.distance_m,
+            ..ArcGeometry::default()
+        },
+        incidence_deg: args.incidence_deg,
+        bands_hz: bands.centres_hz().to_vec(),
+    };
+    let report = if args.quadrature {
+        gonio::measure_by_quadrature(law.as_ref(), &request, 60)?
+    } else {
+        gonio::measure(law.as_ref(), &request, args.samples, args.seed)?
+    };
+    if let Some(out) = &args.out {
+        let file = gonio::to_polar_file(&report, &material.name);
+        let text = serde_json::to_string_pretty(&file)?;
+        polaray::output::write_atomic(out, text.as_bytes())
+            .with_context(|| format!("{}: cannot write the polar file", out.display()))?;
+    }
+    if args.json {
+        let output = Output {
+            material: &material.name,
+            adjustments: &adjustments,
+            report: &report,
+        };
+        println!("{}", serde_json::to_string_pretty(&output)?);
+    } else {
+        print!("{}", table(&material.name, &report));
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn opt(v: Option<f64>, digits: usize) -> String {
+    v.map_or_else(|| "-".into(), |x| format!("{x:.digits$}"))
+}
+
+fn table(material: &str, r: &GonioReport) -> String {
+    let mut t = String::new();
+    let zone: Vec<String> = r
+        .receiver_deg
+        .iter()
+        .zip(&r.zone)
+        .filter(|(_, &z)| z)
+        .map(|(d, _)| format!("{d:.0}"))
+        .collect();
+    let _ = writeln!(
+        t,
+        "Virtual goniometer: material '{material}', law '{}', incidence {:.1}°, {}",
+        r.law,
+        r.incidence_deg,
+        match (r.samples, r.seed) {
+            (Some(n), Some(s)) => format!("{n} samples, seed {s}"),
+            _ => r.method.clone(),
+        }
+    );
+    let _ = writeln!(
+        t,
+        "Arc: {} receivers, specular zone {} (edges {:.1}° .. {:.1}°), sample {} m, distances {} m / {} m",
+        r.receiver_deg.len(),
+        zone.join(" "),
+        r.zone_edges_deg.0,
+        r.zone_edges_deg.1,
+        r.geometry.sample_width_m,
+        r.geometry.source_distance_m,
+        r.geometry.receiver_distance_m
+    );
+    let _ = writeln!(t, "Note: {}.", r.mirror_representation);
+    let _ = writeln!(t);
+    let _ = writeln!(
+        t,
+        "{:>8}  {:>8}  {:>6}  {:>6}  {:>7}  {:>7}  {:>10}  {:>8}  {:>8}",
+        "band Hz", "law s", "s_z", "d", "d_max", "d/d_max", "reflected", "mirror", "on arc"
+    );
+    for b in &r.bands {
+        let refl = match b.balance.reflected_std_error {
+            Some(se) => format!("{:.4}±{:.4}", b.balance.reflected, se),
+            None => format!("{:.4}", b.balance.reflected),
+        };
+        let _ = writeln!(
+            t,
+            "{:>8}  {:>8}  {:>6.3}  {:>6}  {:>7}  {:>7}  {:>10}  {:>8.4}  {:>8.4}",
+            b.band_hz,
+            opt(b.law_scattering, 3),
+            b.zone_ratio,
+            opt(b.diffusion, 3),
+            opt(b.diffusion_bound, 3),
+            opt(b.diffusion_ratio, 3),
+            refl,
+            b.balance.mirror,
+            b.balance.non_mirror_on_arc
+        );
+    }
+    let _ = writeln!(t);
+    let _ = writeln!(t, "Levels, dB re the total reflected energy:");
+    let _ = write!(t, "{:>8}", "deg");
+    for b in &r.bands {
+        let _ = write!(t, "  {:>7}", b.band_hz);
+    }
+    let _ = writeln!(t);
+    for (i, deg) in r.receiver_deg.iter().enumerate() {
+        let mark = if r.zone[i] { "*" } else { " " };
+        let _ = write!(t, "{deg:>7.0}{mark}");
+        for b in &r.bands {
+            let _ = write!(t, "  {:>7.1}", b.level_db[i]);
+        }
+        let _ = writeln!(t);
+    }
+    let _ = writeln!(t, "(* specular zone)");
+    t
+}
