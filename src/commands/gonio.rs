@@ -9,17 +9,10 @@ use serde::Serialize;
 
 use polaray::bands::BandSet;
 use polaray::gonio::{self, ArcGeometry, GonioReport, GonioRequest};
-use polaray::law::{Adjustment, BoundedLaw, ReflectionLaw, SplitLaw};
-use polaray::room::Material;
+use std::str::FromStr;
 
-/// Which law to measure.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
-pub enum LawChoice {
-    /// Lambert split by the scattering coefficient.
-    Split,
-    /// Mixed law bounded by scattering and diffusion coefficients.
-    Bounded,
-}
+use polaray::law::{LawKind, ReflectionLaw};
+use polaray::room::Material;
 
 /// Options of `polaray gonio`.
 #[derive(Debug, clap::Args)]
@@ -35,8 +28,8 @@ pub struct Args {
     #[arg(long, conflicts_with = "room")]
     pub material_file: Option<PathBuf>,
     /// Reflection law to measure.
-    #[arg(long, value_enum)]
-    pub law: LawChoice,
+    #[arg(long, value_parser = clap::builder::PossibleValuesParser::new(LawKind::NAME_LIST))]
+    pub law: String,
     /// Source angle from the normal, degrees (the mirror receiver is at minus this).
     #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
     pub incidence_deg: f64,
@@ -67,7 +60,7 @@ pub struct Args {
 #[derive(Serialize)]
 struct Output<'a> {
     material: &'a str,
-    adjustments: &'a [Adjustment],
+    adjustments: &'a [String],
     #[serde(flatten)]
     report: &'a GonioReport,
 }
@@ -102,13 +95,13 @@ fn load_material(args: &Args) -> anyhow::Result<(Material, BandSet)> {
 /// Runs the command.
 pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     let (material, bands) = load_material(&args)?;
-    let (law, adjustments): (Box<dyn ReflectionLaw>, Vec<Adjustment>) = match args.law {
-        LawChoice::Split => (Box::new(SplitLaw::new(&material, bands.len())), Vec::new()),
-        LawChoice::Bounded => {
-            let (law, adj) = BoundedLaw::new(&material, &bands)?;
-            (Box::new(law), adj)
-        }
-    };
+    // The same factory as the tracer; all bands on one law instance (a single
+    // reflection has no compounding weight noise), polar data used as
+    // rotationally symmetric so the arc in the local x–z plane sees them.
+    let kind = LawKind::from_str(&args.law)?;
+    let all: Vec<usize> = (0..bands.len()).collect();
+    let (law, adjustments): (Box<dyn ReflectionLaw>, Vec<String>) =
+        kind.build(&material, &bands, &all, false)?;
     for a in &adjustments {
         eprintln!("warning: {a}");
     }

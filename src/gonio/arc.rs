@@ -66,7 +66,7 @@ impl ArcGeometry {
         positive("receiver distance (m)", self.receiver_distance_m)?;
         positive("receiver step (deg)", self.receiver_step_deg)?;
         positive("slab half-width (deg)", self.slab_half_width_deg)?;
-        if self.receivers < 3 || self.receivers % 2 == 0 {
+        if self.receivers < 3 || self.receivers.is_multiple_of(2) {
             return Err(ArcError(format!(
                 "{} receivers: give an odd number, at least 3, so one sits on the normal",
                 self.receivers

@@ -10,7 +10,8 @@ use std::collections::HashMap;
 use std::fmt;
 use std::str::FromStr;
 
-use super::{MeasuredPolarLaw, ReflectionLaw, SplitLaw};
+use super::single_band::{single_band_inputs, SingleBand};
+use super::{BoundedLaw, BoundedLawError, MeasuredPolarLaw, ReflectionLaw, SplitLaw};
 use crate::bands::BandSet;
 use crate::polar::load_polar_file;
 use crate::room::{Material, Room};
@@ -21,6 +22,9 @@ use crate::room::{Material, Room};
 pub enum LawKind {
     /// Lambert split by the scattering coefficient ([`SplitLaw`]).
     Split,
+    /// Scattered energy shaped to reproduce both the scattering and the
+    /// diffusion coefficient ([`BoundedLaw`]); materials give `diffusion`.
+    Bounded,
     /// Directions drawn from measured or predicted polar responses
     /// ([`MeasuredPolarLaw`]); materials name a polar file.
     Polar,
@@ -68,13 +72,14 @@ pub struct RoomLaws {
 
 impl LawKind {
     /// Every law name accepted by `--law`, in the order of the variants.
-    pub const NAME_LIST: &'static [&'static str] = &["split", "polar"];
+    pub const NAME_LIST: &'static [&'static str] = &["split", "bounded", "polar"];
 
     /// The name given to `--law`.
     #[must_use]
     pub fn name(self) -> &'static str {
         match self {
             Self::Split => "split",
+            Self::Bounded => "bounded",
             Self::Polar => "polar",
         }
     }
@@ -91,6 +96,36 @@ impl LawKind {
     ) -> Result<(Box<dyn ReflectionLaw>, Vec<String>), LawError> {
         match self {
             Self::Split => Ok((Box::new(SplitLaw::for_bands(material, active)), Vec::new())),
+            Self::Bounded => {
+                if material.diffusion.is_none() {
+                    return Err(LawError::MissingData {
+                        material: material.name.clone(),
+                        law: "bounded",
+                        missing: "a diffusion coefficient per band (`diffusion = [...]`)".into(),
+                    });
+                }
+                let bad = |e: BoundedLawError| LawError::BadData {
+                    material: material.name.clone(),
+                    law: "bounded",
+                    reason: e.to_string(),
+                };
+                let (law, adjustments): (Box<dyn ReflectionLaw>, _) = match active {
+                    [band] => {
+                        let (one, set) = single_band_inputs(material, bands, *band);
+                        let (law, adj) = BoundedLaw::new(&one, &set).map_err(bad)?;
+                        (Box::new(SingleBand::new(Box::new(law), *band)), adj)
+                    }
+                    _ => {
+                        let (law, adj) = BoundedLaw::new(material, bands).map_err(bad)?;
+                        (Box::new(law), adj)
+                    }
+                };
+                let warnings = adjustments
+                    .iter()
+                    .map(|a| format!("material `{}`: {a}", material.name))
+                    .collect();
+                Ok((law, warnings))
+            }
             Self::Polar => {
                 let Some(file) = material.polar_file.as_deref() else {
                     return Err(LawError::MissingData {
@@ -181,8 +216,8 @@ impl LawKind {
     #[must_use]
     pub fn band_groups(self, room: &Room) -> Vec<Vec<usize>> {
         let bands = room.settings.bands.len();
-        if self == Self::Polar {
-            // Measured patterns differ from band to band.
+        if self != Self::Split {
+            // Measured patterns and bounded-law shapes differ from band to band.
             return (0..bands).map(|b| vec![b]).collect();
         }
         let key = |b: usize| -> Vec<u64> {
@@ -209,6 +244,7 @@ impl FromStr for LawKind {
     fn from_str(s: &str) -> Result<Self, Self::Err> {
         match s {
             "split" => Ok(Self::Split),
+            "bounded" => Ok(Self::Bounded),
             "polar" => Ok(Self::Polar),
             other => Err(LawError::Unknown(other.to_string())),
         }

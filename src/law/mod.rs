@@ -9,6 +9,7 @@
 pub mod bounded;
 pub mod factory;
 pub mod measured;
+pub mod single_band;
 pub mod split;
 
 use glam::DVec3;
