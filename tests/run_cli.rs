@@ -49,11 +49,14 @@ fn writes_result_json_echogram_tables_and_charts() {
             "echograms.csv",
             "echograms-lateral.csv",
             "echogram-R1.png",
-            "echogram-R2.png"
+            "echogram-R2.png",
+            "parameters.csv",
+            "decay-R1.png",
+            "decay-R2.png"
         ]
     );
     // No temporary files left behind.
-    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 5);
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 8);
 
     // result.json holds the documented keys with sensible values.
     let json: serde_json::Value =

@@ -1,4 +1,5 @@
-//! `polaray run`: trace a room and write its echograms, statistics and charts.
+//! `polaray run`: trace a room and write its echograms, ISO 3382-1 parameters,
+//! statistics and charts.
 
 use std::io::IsTerminal;
 use std::path::PathBuf;
@@ -9,6 +10,7 @@ use anyhow::Context;
 use indicatif::{ProgressBar, ProgressStyle};
 
 use polaray::law::LawKind;
+use polaray::metrics;
 use polaray::report;
 use polaray::room::{self, estimates};
 use polaray::trace::{self, TraceOptions, TraceResult};
@@ -89,19 +91,18 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     for w in &result.warnings {
         eprintln!("warning: {w}");
     }
-    let written = report::write_run(&out, &room, &options, &result, warnings)?;
-    print_summary(&room, &options, &result, &out, written.len());
+    let parameters = report::run_parameters(&result);
+    let written =
+        report::write_run_with_parameters(&out, &room, &options, &result, &parameters, warnings)?;
+    print_summary(&room, &options, &result);
+    print_parameters(&result, &parameters);
+    println!("  wrote {} files to {}", written.len(), out.display());
+    println!("  {}", report::ADVISORY);
     Ok(ExitCode::SUCCESS)
 }
 
-/// The stdout summary: what was traced, how it went, strength per band.
-fn print_summary(
-    room: &room::Room,
-    options: &TraceOptions,
-    result: &TraceResult,
-    out: &std::path::Path,
-    files: usize,
-) {
+/// The stdout summary: what was traced and how it went.
+fn print_summary(room: &room::Room, options: &TraceOptions, result: &TraceResult) {
     let s = &result.stats;
     println!(
         "{} · law {} · {} rays per source · seed {}",
@@ -125,26 +126,70 @@ fn print_summary(
         result.duration_s,
         result.bin_s * 1e3
     );
-    let bands = result.bands.centres_hz();
-    let header: String = bands
+}
+
+/// A table cell: the value scaled and rounded, `–` where undefined.
+fn cell(v: Option<f64>, decimals: usize) -> String {
+    v.map_or_else(|| "–".to_string(), |x| format!("{x:.decimals$}"))
+}
+
+/// One row of the parameter table: T30, EDT, C80, D50, G, JLF.
+#[allow(clippy::too_many_arguments)]
+fn row(
+    label: &str,
+    t30: Option<f64>,
+    edt: Option<f64>,
+    c80: Option<f64>,
+    d50: Option<f64>,
+    g: Option<f64>,
+    jlf: Option<f64>,
+) {
+    println!(
+        "  {label:<14}{:>7}{:>7}{:>8}{:>6}{:>7}{:>6}",
+        cell(t30, 2),
+        cell(edt, 2),
+        cell(c80, 1),
+        cell(d50, 2),
+        cell(g, 1),
+        cell(jlf, 2)
+    );
+}
+
+/// The parameter table: one row of single-number means per pair when the
+/// 500 and 1000 Hz bands were traced, else one row per pair and band; the
+/// notes of each pair (e.g. a blocked direct sound) follow.
+fn print_parameters(result: &TraceResult, parameters: &[report::PairParameters]) {
+    let centres = result.bands.centres_hz();
+    let means = metrics::averages::MID_BANDS_HZ
         .iter()
-        .map(|hz| format!("{:>8}", format!("{hz} Hz")))
-        .collect();
-    println!("  strength G (dB)      {header}");
-    for p in &result.echograms {
-        let name = report::column_prefix(result, p.source, p.receiver);
-        let total = p.echogram.total();
-        let row: String = (0..bands.len())
-            .map(|b| {
-                format!(
-                    "{:>8.1}",
-                    10.0 * (4.0 * std::f64::consts::PI * 100.0 * total[b]).log10()
-                )
-            })
-            .collect();
-        let r = &result.receivers[p.receiver];
-        println!("  {:<12} r {:>4.2} m {row}", name, r.radius_m);
+        .all(|hz| centres.contains(hz));
+    if means {
+        println!(
+            "  parameters, means over 500–1000 Hz (JLF 125–1000 Hz); per band in parameters.csv"
+        );
+    } else {
+        println!("  parameters per band (500 and 1000 Hz not both traced, so no means)");
     }
-    println!("  wrote {files} files to {}", out.display());
-    println!("  {}", report::ADVISORY);
+    println!(
+        "  {:<14}{:>7}{:>7}{:>8}{:>6}{:>7}{:>6}",
+        "receiver", "T30 s", "EDT s", "C80 dB", "D50", "G dB", "JLF"
+    );
+    for p in parameters {
+        let name = report::column_prefix(result, p.source, p.receiver);
+        if means {
+            let a = &p.averages;
+            row(&name, a.t30_s, a.edt_s, a.c80_db, a.d50, a.g_db, a.jlf);
+        } else {
+            for b in &p.bands {
+                let label = format!("{name} {}", b.band_hz);
+                row(&label, b.t30_s, b.edt_s, b.c80_db, b.d50, b.g_db, b.jlf);
+            }
+        }
+    }
+    for p in parameters {
+        for n in &p.notes {
+            let name = report::column_prefix(result, p.source, p.receiver);
+            println!("  note: {name}: {n}");
+        }
+    }
 }

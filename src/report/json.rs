@@ -1,5 +1,8 @@
 //! `result.json`: the room estimates, every setting used, run statistics and
-//! the receivers, in one self-describing document.
+//! the receivers with their ISO 3382-1 parameters per band, in one
+//! self-describing document.
+
+use std::collections::BTreeMap;
 
 use glam::DVec3;
 use serde::Serialize;
@@ -9,6 +12,8 @@ use crate::room::{estimates, Room};
 use crate::trace::{Roulette, TraceOptions, TraceResult};
 
 use super::csv::{column_prefix, EchogramKind};
+use super::parameters::{run_parameters, PairParameters, PARAMETERS_CSV_FILE};
+use crate::metrics::{Averages, BandParameters};
 
 /// The note every result carries.
 pub const ADVISORY: &str = "Results are advisory: a geometric model with stated assumptions. Local codes, standards and licensed professional practice decide.";
@@ -110,17 +115,85 @@ pub struct StatsReport {
     pub wall_time_s: f64,
 }
 
-/// One receiver.
+/// One band of a pair's ISO 3382-1 parameters: exactly the fields of
+/// `parameters.csv`, `null` where undefined with the reason in `undefined`.
+#[derive(Debug, Serialize)]
+pub struct BandReport {
+    /// Nominal octave-band centre, Hz.
+    pub band_hz: u32,
+    /// Early decay time, s.
+    #[serde(rename = "EDT_s")]
+    pub edt_s: Option<f64>,
+    /// Reverberation time from −5 to −25 dB, s.
+    #[serde(rename = "T20_s")]
+    pub t20_s: Option<f64>,
+    /// Reverberation time from −5 to −35 dB, s.
+    #[serde(rename = "T30_s")]
+    pub t30_s: Option<f64>,
+    /// Clarity, 50 ms limit, dB.
+    #[serde(rename = "C50_db")]
+    pub c50_db: Option<f64>,
+    /// Clarity, 80 ms limit, dB.
+    #[serde(rename = "C80_db")]
+    pub c80_db: Option<f64>,
+    /// Definition, 50 ms limit (ratio 0–1).
+    #[serde(rename = "D50")]
+    pub d50: Option<f64>,
+    /// Centre time, s.
+    #[serde(rename = "Ts_s")]
+    pub ts_s: Option<f64>,
+    /// Strength G, dB re the same source in a free field at 10 m.
+    #[serde(rename = "G_db")]
+    pub g_db: Option<f64>,
+    /// Early lateral energy fraction J_LF (ratio 0–1).
+    #[serde(rename = "JLF")]
+    pub jlf: Option<f64>,
+    /// Why each `null` value is undefined, keyed by field name.
+    pub undefined: BTreeMap<String, String>,
+}
+
+impl BandReport {
+    /// The report fields of computed band parameters.
+    #[must_use]
+    pub fn from_parameters(b: &BandParameters) -> Self {
+        Self {
+            band_hz: b.band_hz,
+            edt_s: b.edt_s,
+            t20_s: b.t20_s,
+            t30_s: b.t30_s,
+            c50_db: b.c50_db,
+            c80_db: b.c80_db,
+            d50: b.d50,
+            ts_s: b.ts_s,
+            g_db: b.g_db,
+            jlf: b.jlf,
+            undefined: b.undefined.clone(),
+        }
+    }
+}
+
+/// One receiver as heard from one source. `receivers` holds one entry per
+/// source–receiver pair, source-major (the order of `pairs` and of the
+/// echogram columns); with a single source that is one entry per receiver.
 #[derive(Debug, Serialize)]
 pub struct ReceiverReport {
     /// Name.
     pub name: String,
+    /// Source these parameters belong to.
+    pub source: String,
     /// Centre, m.
     pub position: DVec3,
     /// Detection radius, m.
     pub radius_m: f64,
     /// Where the radius came from.
     pub radius_from: &'static str,
+    /// ISO 3382-1 parameters per band, t = 0 at the direct sound d / c.
+    pub bands: Vec<BandReport>,
+    /// Single-number means: EDT, T20, T30, C50, C80, D50, Ts and G over
+    /// 500–1000 Hz, JLF over 125–1000 Hz (ISO 3382-1:2009, Table A.1).
+    pub averages: Averages,
+    /// Notes on this pair: a blocked direct sound, doubtful fits per band.
+    pub notes: Vec<String>,
 }
 
 /// One source.
@@ -151,7 +224,9 @@ pub struct PairReport {
     pub lateral_axis: DVec3,
     /// Sum of the echogram per band, J/m².
     pub total_fluence_j_per_m2: Vec<Option<f64>>,
-    /// Strength G per band, dB: 10 lg(4π · 100 m² · total) (ISO 3382-1, A.2.1).
+    /// Strength G per band of the traced echogram alone, dB: 10 lg(4π · 100 m²
+    /// · total) (ISO 3382-1, A.2.1). `receivers[].bands[].G_db` adds the
+    /// continuation of the decay past the echogram's end and is the value to use.
     pub strength_db: Vec<Option<f64>>,
 }
 
@@ -170,23 +245,40 @@ pub struct RunReport {
     pub stats: StatsReport,
     /// Sources.
     pub sources: Vec<SourceReport>,
-    /// Receivers.
+    /// Receivers with their parameters: one entry per source–receiver pair,
+    /// source-major (one per receiver with a single source).
     pub receivers: Vec<ReceiverReport>,
     /// Pairs, source-major, in the column order of the echogram tables.
     pub pairs: Vec<PairReport>,
     /// Echogram files: energy, then lateral.
     pub echogram_files: [&'static str; 2],
+    /// The table of parameters per pair and band.
+    pub parameters_file: &'static str,
     /// Warnings of the loader and the run.
     pub warnings: Vec<String>,
 }
 
 impl RunReport {
-    /// Collects the report of one run; `warnings` are the loader's plus the run's.
+    /// Collects the report of one run, computing the parameters of every pair;
+    /// `warnings` are the loader's plus the run's.
     #[must_use]
     pub fn new(
         room: &Room,
         options: &TraceOptions,
         result: &TraceResult,
+        warnings: Vec<String>,
+    ) -> Self {
+        Self::with_parameters(room, options, result, &run_parameters(result), warnings)
+    }
+
+    /// As [`RunReport::new`] with the parameters already computed
+    /// ([`run_parameters`], one entry per pair in `result.echograms` order).
+    #[must_use]
+    pub fn with_parameters(
+        room: &Room,
+        options: &TraceOptions,
+        result: &TraceResult,
+        parameters: &[PairParameters],
         warnings: Vec<String>,
     ) -> Self {
         let n = result.bands.len();
@@ -261,18 +353,28 @@ impl RunReport {
                     position: s.position,
                 })
                 .collect(),
-            receivers: result
-                .receivers
+            receivers: parameters
                 .iter()
-                .map(|r| ReceiverReport {
-                    name: r.name.clone(),
-                    position: r.position,
-                    radius_m: r.radius_m,
-                    radius_from: if r.radius_is_default {
-                        "default rule: sqrt(10 V / (pi N c bin)), clamped to 0.1..1 m"
-                    } else {
-                        "room file or options"
-                    },
+                .map(|p| {
+                    let r = &result.receivers[p.receiver];
+                    let mut notes = p.notes.clone();
+                    for b in &p.bands {
+                        notes.extend(b.warnings.iter().map(|w| format!("{} Hz: {w}", b.band_hz)));
+                    }
+                    ReceiverReport {
+                        name: r.name.clone(),
+                        source: result.sources[p.source].name.clone(),
+                        position: r.position,
+                        radius_m: r.radius_m,
+                        radius_from: if r.radius_is_default {
+                            "default rule: sqrt(10 V / (pi N c bin)), clamped to 0.1..1 m"
+                        } else {
+                            "room file or options"
+                        },
+                        bands: p.bands.iter().map(BandReport::from_parameters).collect(),
+                        averages: p.averages.clone(),
+                        notes,
+                    }
                 })
                 .collect(),
             pairs: result
@@ -298,6 +400,7 @@ impl RunReport {
                 EchogramKind::Energy.file_name(),
                 EchogramKind::Lateral.file_name(),
             ],
+            parameters_file: PARAMETERS_CSV_FILE,
             warnings,
         }
     }

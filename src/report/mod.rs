@@ -1,16 +1,22 @@
-//! Writers for trace results: `result.json`, the echogram CSV files and the
-//! echogram plots. Tracing ([`crate::trace`]) never writes; these functions
+//! Writers for trace results: `result.json`, the echogram CSV files, the
+//! echogram plots, the ISO 3382-1 parameter table `parameters.csv` and the
+//! decay-curve plots. Tracing ([`crate::trace`]) never writes; these functions
 //! only turn a [`TraceResult`](crate::trace::TraceResult) into files, each
 //! through [`crate::output`] so a crash leaves no half-written file.
 
 mod csv;
 mod json;
+mod parameters;
 mod plot;
 
 use std::path::PathBuf;
 
 pub use csv::{column_prefix, echogram_csv, EchogramKind};
-pub use json::{result_json, RunReport, ADVISORY};
+pub use json::{result_json, BandReport, ReceiverReport, RunReport, ADVISORY};
+pub use parameters::{
+    decay_plot_file_name, pair_parameters, parameters_csv, run_parameters, write_decay_plot,
+    PairParameters, PARAMETERS_CSV_FILE, PARAMETERS_CSV_HEADER,
+};
 pub use plot::{plot_file_name, write_echogram_plot};
 
 /// A result file that could not be written.
@@ -65,14 +71,29 @@ pub fn file_safe(name: &str) -> String {
     }
 }
 
-/// Writes `result.json`, `echograms.csv`, `echograms-lateral.csv` and one
-/// echogram chart per pair into `dir` (created if needed); returns the paths
-/// written, in that order.
+/// Writes `result.json`, `echograms.csv`, `echograms-lateral.csv`, one
+/// echogram chart per pair, `parameters.csv` and one decay-curve chart per
+/// pair into `dir` (created if needed); returns the paths written, in that
+/// order. Computes the parameters itself; see [`write_run_with_parameters`].
 pub fn write_run(
     dir: &std::path::Path,
     room: &crate::room::Room,
     options: &crate::trace::TraceOptions,
     result: &crate::trace::TraceResult,
+    warnings: Vec<String>,
+) -> Result<Vec<PathBuf>, ReportError> {
+    let parameters = run_parameters(result);
+    write_run_with_parameters(dir, room, options, result, &parameters, warnings)
+}
+
+/// As [`write_run`], with the parameters of every pair already computed by
+/// [`run_parameters`] (so a caller that also prints them computes them once).
+pub fn write_run_with_parameters(
+    dir: &std::path::Path,
+    room: &crate::room::Room,
+    options: &crate::trace::TraceOptions,
+    result: &crate::trace::TraceResult,
+    parameters: &[PairParameters],
     warnings: Vec<String>,
 ) -> Result<Vec<PathBuf>, ReportError> {
     let io = |path: &std::path::Path| {
@@ -81,7 +102,7 @@ pub fn write_run(
     };
     let mut written = Vec::new();
     let json_path = dir.join("result.json");
-    let report = RunReport::new(room, options, result, warnings);
+    let report = RunReport::with_parameters(room, options, result, parameters, warnings);
     let text = result_json(&report).map_err(|source| ReportError::Json {
         path: json_path.clone(),
         source,
@@ -97,6 +118,15 @@ pub fn write_run(
     for p in &result.echograms {
         let path = dir.join(plot_file_name(result, p.source, p.receiver));
         write_echogram_plot(result, p.source, p.receiver, &path)?;
+        written.push(path);
+    }
+    let csv_path = dir.join(PARAMETERS_CSV_FILE);
+    crate::output::write_atomic(&csv_path, parameters_csv(result, parameters).as_bytes())
+        .map_err(io(&csv_path))?;
+    written.push(csv_path);
+    for p in parameters {
+        let path = dir.join(decay_plot_file_name(result, p.source, p.receiver));
+        write_decay_plot(result, p, &path)?;
         written.push(path);
     }
     Ok(written)
