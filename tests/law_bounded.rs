@@ -58,9 +58,9 @@ fn reproduces_s_and_d_on_a_grid_up_to_the_bound() {
 fn a_pair_above_the_bound_is_refused() {
     // reference.md §3: 37 receivers, 5 in the zone: d_max(0.5) = 67/148 = 0.453.
     let bands = BandSet::new(&[1000]).unwrap();
-    let err = BoundedLaw::new(&material(0.5, Some(0.6)), &bands)
-        .err()
-        .expect("refused");
+    let Err(err) = BoundedLaw::new(&material(0.5, Some(0.6)), &bands) else {
+        panic!("d = 0.6 at s = 0.5 must be refused");
+    };
     assert!(err.to_string().contains("panel"), "{err}");
 }
 
