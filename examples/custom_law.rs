@@ -84,7 +84,10 @@ fn main() {
         bands_hz: vec![1000],
     };
     println!("glossy lobe around the mirror, s = 0.6, 10% absorption, normal incidence");
-    println!("{:>8} {:>8} {:>8} {:>8} {:>10}", "n", "s_zone", "d", "d_max", "law's s");
+    println!(
+        "{:>8} {:>8} {:>8} {:>8} {:>10}",
+        "n", "s_zone", "d", "d_max", "law's s"
+    );
     for exponent in [1.0, 5.0, 20.0, 100.0] {
         let law = GlossyLobe {
             reflectance: 0.9,

@@ -120,10 +120,8 @@ impl LawKind {
                         (Box::new(law), adj)
                     }
                 };
-                let warnings = adjustments
-                    .iter()
-                    .map(|a| format!("material `{}`: {a}", material.name))
-                    .collect();
+                // Each adjustment already names the material and band.
+                let warnings = adjustments.iter().map(ToString::to_string).collect();
                 Ok((law, warnings))
             }
             Self::Polar => {
