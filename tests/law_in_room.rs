@@ -68,6 +68,13 @@ fn all_laws_agree_when_every_surface_is_flat() {
     options.law = LawKind::Polar;
     let polar = trace::run(&room, &options).unwrap();
     assert_eq!(split.echograms[0].echogram, polar.echograms[0].echogram);
+    // The bounded law needs a diffusion coefficient: at s = 0 the only value
+    // a finite flat sample shows is d_max(0) = 1/9 (reference.md §3).
+    let mut flat = room.clone();
+    flat.materials[0].diffusion = Some(polaray::bands::Bands::splat(1.0 / 9.0));
+    options.law = LawKind::Bounded;
+    let bounded = trace::run(&flat, &options).unwrap();
+    assert_eq!(split.echograms[0].echogram, bounded.echograms[0].echogram);
 }
 
 #[test]
@@ -86,4 +93,38 @@ fn missing_polar_data_is_an_error_unless_a_fallback_is_given() {
     let result = trace::run(&room, &options).unwrap();
     assert_eq!(result.fallbacks.len(), 1, "{:?}", result.fallbacks);
     assert!(result.fallbacks[0].contains("walls"));
+}
+
+#[test]
+fn every_law_conserves_energy_per_reflection() {
+    // Mean sample weight = 1 − α per band (energy conservation, as renderers
+    // test their reflection models; common practice, no source), 10^6 samples,
+    // tolerance 5 standard errors of the mean weight.
+    use polaray::random::Stream;
+    let mut room = room_with_diffuser(0.5, 0.2);
+    room.materials[0].diffusion = Some(polaray::bands::Bands::splat(0.3));
+    let material = &room.materials[0];
+    let bands = &room.settings.bands;
+    let wo = DVec3::new(0.4, 0.2, 0.8).normalize();
+    for kind in [LawKind::Split, LawKind::Bounded, LawKind::Polar] {
+        for band in 0..bands.len() {
+            let (law, _) = kind.build(material, bands, &[band], false).unwrap();
+            let mut rng = Stream::new(5, band as u64);
+            let n = 1_000_000;
+            let (mut sum, mut sum2) = (0.0, 0.0);
+            for _ in 0..n {
+                let w = law
+                    .sample(wo, rng.uniform(), rng.uniform2())
+                    .map_or(0.0, |s| s.weight[band]);
+                sum += w;
+                sum2 += w * w;
+            }
+            let mean = sum / n as f64;
+            let se = ((sum2 / n as f64 - mean * mean).max(0.0) / n as f64).sqrt();
+            assert!(
+                (mean - 0.8).abs() <= 5.0 * se + 1e-9,
+                "{kind} band {band}: mean weight {mean} (se {se})"
+            );
+        }
+    }
 }
