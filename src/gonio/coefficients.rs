@@ -1,46 +1,33 @@
-//! Coefficients the goniometer reports: the equal-area diffusion coefficient
-//! and the scattering–diffusion bound.
-//!
-//! TEMPORARY TWINS: the `polar` work item owns the real versions of these
-//! functions in `src/polar/`. These private copies exist only so the goniometer
-//! and the bounded law build on their own; the integrator swaps them for the
-//! polar module's functions. The formulas are those of reference.md §1 and §3,
-//! written identically.
+//! Coefficients the goniometer reports, as thin adapters over the polar
+//! module's functions ([`crate::polar::diffusion`], [`crate::polar::bound`]),
+//! so a virtual measurement is evaluated exactly like a laboratory one.
+
+use crate::polar::bound::ZoneSize;
+use crate::polar::diffusion::diffusion_coefficient;
 
 /// Diffusion coefficient of equal-area receivers (ISO 17497-2:2012 cl. 8;
 /// reference.md §1): d = [(Σ p)² − Σ p²] / [(n − 1) Σ p²], p the receiver
 /// energies (any common scale). `None` with fewer than two receivers or no energy.
 #[must_use]
 pub fn diffusion_equal_area(energies: &[f64]) -> Option<f64> {
-    let n = energies.len();
-    let sum: f64 = energies.iter().sum();
-    let sum_sq: f64 = energies.iter().map(|p| p * p).sum();
-    if n < 2 || sum_sq <= 0.0 {
-        return None;
-    }
-    Some((sum * sum - sum_sq) / ((n as f64 - 1.0) * sum_sq))
+    let ones = vec![1.0; energies.len()];
+    diffusion_coefficient(energies, &ones)
 }
 
 /// Zone ratio at which the bound reaches 1: s* = (M − M_s)/M, the fraction of
 /// receivers outside the specular zone (reference.md §3).
 #[must_use]
 pub fn zone_ratio_of_full_diffusion(receivers: usize, zone_receivers: usize) -> f64 {
-    (receivers - zone_receivers.min(receivers)) as f64 / receivers as f64
+    ZoneSize::equal_area(receivers, zone_receivers.min(receivers)).s_star()
 }
 
-/// The bound d_max(s; M, M_s) (reference.md §3): with w(s) = (1 − s)²/M_s +
-/// s²/(M − M_s), d_max = (1 − w)/((M − 1) w), s the zone ratio (fraction
-/// outside the zone). `None` when the zone is empty or holds every receiver,
-/// where the bound is not defined.
+/// The bound d_max(s; M, M_s) (reference.md §3) for zone ratio `zone_ratio`;
+/// `None` when the zone is empty or holds every receiver, where it is undefined.
 #[must_use]
 pub fn diffusion_bound(zone_ratio: f64, receivers: usize, zone_receivers: usize) -> Option<f64> {
-    if zone_receivers == 0 || zone_receivers >= receivers || receivers < 2 {
-        return None;
-    }
-    let (m, ms) = (receivers as f64, zone_receivers as f64);
-    let s = zone_ratio;
-    let w = (1.0 - s).powi(2) / ms + s * s / (m - ms);
-    Some((1.0 - w) / ((m - 1.0) * w))
+    ZoneSize::equal_area(receivers, zone_receivers)
+        .d_max(zone_ratio)
+        .ok()
 }
 
 /// The consistency bound for a material's scattering coefficient s (not a zone
