@@ -108,9 +108,23 @@ fn bench_room(c: &mut Criterion, label: &str, room: &Room, rays: usize, duration
             b.iter(|| pool.install(|| trace::run(room, &options).unwrap()))
         });
     }
-    // Bare queries: the same number of closest hits from random interior points
-    // in random directions, one thread.
+    // Bare queries, 1: exactly the closest-hit queries the run makes (recorded
+    // by `run_recording_queries`, replayed in order): the run ÷ this time is
+    // the overhead of laws, air absorption and receivers.
+    let (_, recorded) = trace::run_recording_queries(room, &options).unwrap();
+    assert_eq!(recorded.len() as u64, segments);
     let bvh = Bvh::build(&room.triangles);
+    group.bench_function("bare_run_queries_1_thread", |b| {
+        b.iter(|| {
+            let mut hits = 0u64;
+            for &(o, d) in &recorded {
+                hits += u64::from(bvh.closest_hit(o, d, f64::INFINITY).is_some());
+            }
+            hits
+        })
+    });
+    // Bare queries, 2: as many queries from random interior points in random
+    // directions (the BVH bench's kind of rays), for comparison.
     let (lo, hi) = room.triangles.iter().flat_map(|t| t.vertices).fold(
         (DVec3::splat(f64::INFINITY), DVec3::splat(f64::NEG_INFINITY)),
         |(lo, hi), v| (lo.min(v), hi.max(v)),
@@ -127,7 +141,7 @@ fn bench_room(c: &mut Criterion, label: &str, room: &Room, rays: usize, duration
             (p, DVec3::new(s * phi.cos(), s * phi.sin(), z))
         })
         .collect();
-    group.bench_function("bare_queries_1_thread", |b| {
+    group.bench_function("bare_random_queries_1_thread", |b| {
         b.iter(|| {
             let mut hits = 0u64;
             for k in 0..segments as usize {
@@ -146,6 +160,15 @@ fn benches(c: &mut Criterion) {
     let hall = tiled_box(DVec3::new(36.0, 24.0, 14.0), 13);
     assert_eq!(hall.triangles.len(), 2028);
     bench_room(c, "hall_2028_triangles", &hall, 2048, 1.0);
+    // The demo recital hall (3,952 triangles, mostly specular walls, six passes
+    // because its scattering coefficients differ by band).
+    let demo = polaray::room::load_room(std::path::Path::new(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/demo-rooms/recital-hall.toml"
+    )))
+    .unwrap()
+    .room;
+    bench_room(c, "demo_hall_3952_triangles", &demo, 1000, 1.9);
 }
 
 criterion_group!(trace_benches, benches);

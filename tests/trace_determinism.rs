@@ -75,3 +75,20 @@ fn same_seed_repeats_and_other_seed_differs() {
     let d = a.pair(0, 0).echogram.first_nonzero_bin();
     assert_eq!(d, b.pair(0, 0).echogram.first_nonzero_bin());
 }
+
+/// The query log the benchmarks use records one query per traced segment and
+/// changes nothing in the result (it must not perturb what it measures).
+#[test]
+fn recording_queries_changes_nothing_and_sees_every_segment() {
+    let room = room();
+    let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.rays = 2 * trace::RAYS_PER_CHUNK + 5;
+    options.duration_s = 0.4;
+    let plain = trace::run(&room, &options).unwrap();
+    let (logged, queries) = trace::run_recording_queries(&room, &options).unwrap();
+    assert_eq!(bits(&plain), bits(&logged));
+    assert_eq!(queries.len() as u64, plain.stats.segments);
+    // Ray 0 starts at the source in the recorded order.
+    assert_eq!(queries[0].0, room.sources[0].position);
+    assert!(queries.iter().all(|(_, d)| (d.length() - 1.0).abs() < 1e-9));
+}

@@ -86,8 +86,15 @@ impl Scene<'_> {
     }
 
     /// Traces global ray `index` (source-major), adding to the echograms of its
-    /// source (`echograms` holds that source's receivers in order).
-    pub fn trace_ray(&self, index: u64, echograms: &mut [Echogram], tally: &mut Tally) {
+    /// source (`echograms` holds that source's receivers in order) and telling
+    /// `log` every closest-hit query it makes.
+    pub fn trace_ray<L: QueryLog>(
+        &self,
+        index: u64,
+        echograms: &mut [Echogram],
+        tally: &mut Tally,
+        log: &mut L,
+    ) {
         let source = (index / self.rays_per_source as u64) as usize;
         let receivers = self.spheres.len();
         let axes = &self.lateral_axes[source * receivers..(source + 1) * receivers];
@@ -102,7 +109,11 @@ impl Scene<'_> {
 
         loop {
             let remaining = self.max_path_m - path_m;
-            let hit = self.bvh.closest_hit(pos, dir, remaining);
+            // One unbounded query per segment: a wall beyond the end of the
+            // duration is still needed (lost ray or not, the free path in progress).
+            log.record(pos, dir);
+            let found = self.bvh.closest_hit(pos, dir, f64::INFINITY);
+            let hit = found.filter(|h| h.distance_m < remaining);
             let segment_m = hit.map_or(remaining, |h| h.distance_m);
             tally.segments += 1;
 
@@ -126,7 +137,7 @@ impl Scene<'_> {
             let Some(hit) = hit else {
                 // Either the duration is used up or nothing lies ahead at all.
                 let energy = weight * self.air_factor(path_m);
-                match self.bvh.closest_hit(pos, dir, f64::INFINITY) {
+                match found {
                     None => {
                         tally.lost_rays += 1;
                         tally.lost_energy_j += energy;
@@ -190,6 +201,36 @@ impl Scene<'_> {
                 }
             }
         }
+    }
+}
+
+/// Receives every closest-hit query a ray makes (origin, unit direction; the
+/// tracer asks for the nearest wall at any distance). The tracer uses [`NoLog`];
+/// benchmarks record the queries to time the bare BVH on exactly the same rays.
+pub trait QueryLog {
+    /// One query.
+    fn record(&mut self, origin: DVec3, direction: DVec3);
+    /// Appends the log of a later chunk.
+    fn append(&mut self, later: Self);
+}
+
+/// Records nothing; compiles away.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct NoLog;
+
+impl QueryLog for NoLog {
+    #[inline(always)]
+    fn record(&mut self, _origin: DVec3, _direction: DVec3) {}
+    fn append(&mut self, _later: Self) {}
+}
+
+/// Keeps every query.
+impl QueryLog for Vec<(DVec3, DVec3)> {
+    fn record(&mut self, origin: DVec3, direction: DVec3) {
+        self.push((origin, direction));
+    }
+    fn append(&mut self, mut later: Self) {
+        Vec::append(self, &mut later);
     }
 }
 
