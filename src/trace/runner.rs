@@ -12,6 +12,7 @@ use super::result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceSt
 use crate::accel::Bvh;
 use crate::bands::Bands;
 use crate::receiver::{default_radius_m, lateral_axis, DetectionSphere, Echogram};
+use crate::room::inside::distance_to_triangle_m;
 use crate::room::{estimates, Room};
 
 /// Rays per chunk: the unit of parallel work and of in-order merging. Fixed,
@@ -95,6 +96,20 @@ fn run_logged<L: QueryLog + Default + Send>(
             radius_is_default,
         });
     }
+    let mut warnings = Vec::new();
+    // A radius given in the room file was checked against the walls when the
+    // room loaded; a default one is checked here, as a warning: a sphere cut
+    // by a wall counts less than its volume (common practice, no source).
+    for r in receivers.iter().filter(|r| r.radius_is_default) {
+        if let Some((surface, distance_m)) = nearest_surface(room, r.position) {
+            if distance_m < r.radius_m {
+                warnings.push(format!(
+                    "receiver `{}`: the default detection radius {:.2} m reaches surface `{surface}` ({distance_m:.2} m from the centre), so the sphere is cut by the wall and counts too little energy; give `radius_m` below {distance_m:.2} m in the room file",
+                    r.name, r.radius_m
+                ));
+            }
+        }
+    }
     let sources: Vec<SourceInfo> = room
         .sources
         .iter()
@@ -105,7 +120,6 @@ fn run_logged<L: QueryLog + Default + Send>(
         .collect();
 
     let bvh = Bvh::build(&room.triangles);
-    let mut warnings = Vec::new();
 
     // Direct sound of every pair, from geometry and visibility.
     let mut pairs = Vec::with_capacity(sources.len() * receivers.len());
@@ -226,6 +240,15 @@ fn run_logged<L: QueryLog + Default + Send>(
         },
         log,
     ))
+}
+
+/// Label of the surface nearest to `point` and its distance, m (`None` without triangles).
+fn nearest_surface(room: &Room, point: DVec3) -> Option<(&str, f64)> {
+    room.triangles
+        .iter()
+        .map(|t| (t, distance_to_triangle_m(point, &t.vertices)))
+        .min_by(|a, b| a.1.total_cmp(&b.1))
+        .map(|(t, d)| (room.surfaces[t.surface as usize].label.as_str(), d))
 }
 
 /// Traces every ray of one pass in fixed chunks, in waves, merging every
