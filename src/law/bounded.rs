@@ -21,7 +21,8 @@
 //! equal readings. Let β be the half-angle of the cone that covers exactly the
 //! zone receivers' cells (M_s · Δθ / 2 = 12.5° on the standard arc) and γ = Δθ/2
 //! (2.5°), the half-angle of a cone that fits in the central cell. Two unit-energy
-//! components, both functions only of the angle α to the mirror direction:
+//! components at normal incidence, both functions only of the angle α to the
+//! mirror direction (here the normal):
 //! - **near-mirror** `A`: uniform intensity for α ≤ γ. All of it lands on the
 //!   central receiver: least even (for a given s, putting the scattered energy
 //!   on one zone receiver maximizes Σ E_i², since the mirror already fills it).
@@ -54,16 +55,42 @@
 //!
 //! Nothing is changed silently: the constructor returns every adjustment.
 //!
-//! # 3D behaviour and other incidence angles
-//! Both components are defined by intensity as functions of the angle to the
-//! mirror direction, so they are rotationally symmetric about it, whatever the
-//! plane: the cones follow the mirror direction at any incidence. The whole
-//! scattered distribution is carried rigidly with the mirror direction; what
-//! would fall below the surface (oblique incidence) is folded back above it by
-//! reflection in the surface plane. That keeps energy exact and `eval`/`pdf`
-//! closed-form; near grazing it leaves the source side of the hemisphere
-//! thinly served. The calibration holds for normal incidence only; at other
-//! angles the goniometer simply measures what the law does.
+//! # Other incidence angles: a reciprocal, diffuse-field-preserving extension
+//! The goniometer fixes only the normal-incidence shape. Away from normal
+//! incidence the law is built so that it is reciprocal and lossless up to
+//! 1 − α, because a law that is both keeps an ideally diffuse sound field
+//! diffuse: cosine-weighted arrivals leave cosine-weighted, and the traced
+//! mean free path stays at 4V/S (the invariant-measure argument behind
+//! Kuttruff's result; Kuttruff, Room Acoustics, §4.5 and §5.2). A shape simply
+//! carried along with the mirror direction is neither: it over-feeds grazing
+//! directions and shortened the mean free path by 7.5 % in a lossless shoebox.
+//!
+//! Directions are mapped to the projected disk u = sin²θ, φ (θ from the
+//! normal). Cosine-weighted (Lambert) directions are uniform in u ∈ [0, 1] and
+//! in φ. Each scattered component has a normal-incidence density g(η) over
+//! η = sin²α ∈ [0, 1] (α the angle to the normal), the shapes `A` and `T`
+//! above. For an arrival at u₀ = sin²θ₀ and azimuth φ₀ the component draws
+//! η ~ g and a sign ±, and leaves at
+//! - v = fold(u₀ ± η), fold reflecting into [0, 1] (x < 0 → −x, x > 1 → 2 − x);
+//! - φ = φ₀ + π + Δφ, Δφ uniform in [−Φ, Φ], with Φ = π for `T` and
+//!   Φ = min(π, π sin²γ / max(u₀, v)) for `A` (so `A` stays a compact lobe
+//!   next to the mirror direction at oblique incidence).
+//!
+//! The density of v is k(u₀, v) = ½[g(|u₀ − v|) + g(u₀ + v)] for u₀ + v ≤ 1 and
+//! ½[g(|u₀ − v|) + g(2 − u₀ − v)] otherwise: symmetric in (u₀, v) and
+//! integrating to 1 over either argument (a reflected random walk on [0, 1]),
+//! so uniform u₀ gives uniform v, and Φ is symmetric too. Per steradian the
+//! density is p(wi) = 2 cos θ · k(u₀, v) / (2Φ) (since dv dφ = 2 cos θ dω), so
+//! the BRDF p / cos θ = k(u₀, v) / Φ is symmetric in wo and wi (reciprocity),
+//! and the map sends the Lambert distribution onto itself; the mirror part
+//! (u, φ + π) does both as well. At u₀ = 0, k(0, v) = g(v) and Φ = π: the
+//! normal-incidence shape, and so the calibration above, is unchanged.
+//!
+//! What this means physically: by reciprocity, a surface that sends much
+//! energy toward grazing at normal incidence (the even component, uniform per
+//! steradian) sends much energy toward the normal at grazing incidence; and
+//! the even component is spread evenly in azimuth around the normal rather
+//! than around the mirror direction.
 //!
 //! # Bands
 //! All bands travel on one ray: the lobe is chosen by picking a band uniformly
@@ -77,7 +104,7 @@ use glam::DVec3;
 
 use super::{LawSample, Lobe, ReflectionLaw};
 use crate::bands::{BandSet, Bands};
-use crate::geometry::{mirror_local, Frame};
+use crate::geometry::mirror_local;
 use crate::gonio::coefficients::{
     diffusion_bound_for_scattering, diffusion_equal_area, zone_ratio_of_full_diffusion,
 };
@@ -386,17 +413,21 @@ pub struct BoundedLaw {
     scattering: Bands,
     /// Mixture weight w of the even component, per band.
     mix: Bands,
-    /// Intensity levels of the even component per unit scattered energy.
+    /// Intensity levels of the even component per unit scattered energy, 1/sr.
     even_inner: Bands,
     even_outer: Bands,
     /// Mean over bands of the scattered energy in each component (for the pdf).
     pdf_near: f64,
     pdf_even_inner: f64,
     pdf_even_outer: f64,
+    /// Intensity of the near-mirror component per unit energy, 1/sr.
     near_level: f64,
     mirror_probability: f64,
     cos_near: f64,
     cos_cone: f64,
+    /// sin²γ and sin²β: the cone edges in η = sin²α.
+    sin2_near: f64,
+    sin2_cone: f64,
     arc: CalibrationArc,
 }
 
@@ -438,6 +469,8 @@ impl BoundedLaw {
             mirror_probability: 0.0,
             cos_near: model.cos_near,
             cos_cone: model.cos_cone,
+            sin2_near: 1.0 - model.cos_near * model.cos_near,
+            sin2_cone: 1.0 - model.cos_cone * model.cos_cone,
             arc: arc.clone(),
         };
         let mut adjustments = Vec::new();
@@ -541,25 +574,108 @@ impl BoundedLaw {
         })
     }
 
-    /// Unit-energy density of the scattered part at cos α = c, where α is the
-    /// angle to the mirror direction, for given component levels.
-    fn density(&self, c: f64, near: f64, inner: f64, outer: f64) -> f64 {
-        if c < 0.0 {
-            0.0
-        } else if c >= self.cos_near {
-            near * self.near_level + inner
-        } else if c >= self.cos_cone {
-            inner
+    /// Half-width Φ of the near-mirror component's azimuth spread for an
+    /// arrival at u = sin²θ₀ leaving at v = sin²θ, radians: π at normal
+    /// incidence, narrowing as π sin²γ / max(u, v) away from it. Symmetric in
+    /// (u, v), as reciprocity needs.
+    #[must_use]
+    pub fn near_azimuth_half_width_rad(&self, u: f64, v: f64) -> f64 {
+        let m = u.max(v);
+        if m <= self.sin2_near {
+            PI
         } else {
-            outer
+            (PI * self.sin2_near / m).min(PI)
         }
     }
 
-    /// cos α to the mirror direction for `wi` and for its reflection below the surface.
-    fn mirror_cosines(wo: DVec3, wi: DVec3) -> (f64, f64) {
-        let m = mirror_local(wo);
-        let folded = DVec3::new(wi.x, wi.y, -wi.z);
-        (wi.dot(m), folded.dot(m))
+    /// Normal-incidence density over η = sin²α of a component whose intensity
+    /// per steradian is `level(η)`: π · level / cos α (dη dφ = 2 cos α dω).
+    fn radial(level: f64, eta: f64) -> f64 {
+        // Clamp 1 − η away from 0: the density is integrable there, and a
+        // finite value keeps weight ratios finite (common practice, no source).
+        PI * level / (1.0 - eta).max(1e-300).sqrt()
+    }
+
+    /// The folded density k(u, v) = ½[g(|u − v|) + g(u + v or 2 − u − v)] of
+    /// one component given its level function (see the module documentation).
+    fn folded(u: f64, v: f64, level: impl Fn(f64) -> f64) -> f64 {
+        let near = (u - v).abs();
+        let far = if u + v <= 1.0 { u + v } else { 2.0 - u - v };
+        let g = |eta: f64| {
+            let l = level(eta);
+            if l == 0.0 {
+                0.0
+            } else {
+                Self::radial(l, eta)
+            }
+        };
+        0.5 * (g(near) + g(far))
+    }
+
+    /// Densities over (v, φ) of the near-mirror component (unit energy) and
+    /// of the even component with unit levels split as (inner, outer), for an
+    /// arrival at u and an exit at v with azimuth offset Δφ from the mirror.
+    fn component_densities(&self, u: f64, v: f64, dphi: f64) -> (f64, f64, f64) {
+        let half = self.near_azimuth_half_width_rad(u, v);
+        let near = if dphi.abs() <= half {
+            let level = self.near_level;
+            let sin2 = self.sin2_near;
+            Self::folded(u, v, |eta| if eta <= sin2 { level } else { 0.0 }) / (2.0 * half)
+        } else {
+            0.0
+        };
+        let sin2 = self.sin2_cone;
+        let inner = Self::folded(u, v, |eta| if eta <= sin2 { 1.0 } else { 0.0 }) / TAU;
+        let outer = Self::folded(u, v, |eta| if eta <= sin2 { 0.0 } else { 1.0 }) / TAU;
+        (near, inner, outer)
+    }
+
+    /// Per-band scattered densities over (v, φ) (scattering and reflectance
+    /// included) and the sampling density over (v, φ) of the non-mirror lobes.
+    fn densities(&self, u: f64, v: f64, dphi: f64) -> (Bands, f64) {
+        let (near, inner, outer) = self.component_densities(u, v, dphi);
+        let per_band = Bands(std::array::from_fn(|b| {
+            if b >= self.bands || self.scattering[b] == 0.0 {
+                return 0.0;
+            }
+            let w = self.mix[b];
+            let q =
+                (1.0 - w) * near + w * (self.even_inner[b] * inner + self.even_outer[b] * outer);
+            self.reflectance[b] * self.scattering[b] * q
+        }));
+        let sampling =
+            self.pdf_near * near + self.pdf_even_inner * inner + self.pdf_even_outer * outer;
+        (per_band, sampling)
+    }
+
+    /// Projected-disk coordinates of an arrival and an exit: (u₀, v, Δφ),
+    /// Δφ the exit azimuth less the mirror azimuth, in (−π, π].
+    fn disk_coordinates(wo: DVec3, wi: DVec3) -> (f64, f64, f64) {
+        let u = (wo.x * wo.x + wo.y * wo.y).min(1.0);
+        let v = (wi.x * wi.x + wi.y * wi.y).min(1.0);
+        let dphi = wrap_angle(wi.y.atan2(wi.x) - wo.y.atan2(wo.x) - PI);
+        (u, v, dphi)
+    }
+}
+
+/// An angle brought into (−π, π].
+fn wrap_angle(a: f64) -> f64 {
+    let r = a.rem_euclid(TAU);
+    if r > PI {
+        r - TAU
+    } else {
+        r
+    }
+}
+
+/// Reflects x into [0, 1]: x < 0 → −x, x > 1 → 2 − x (x within [−1, 2]).
+fn fold_unit(x: f64) -> f64 {
+    if x < 0.0 {
+        (-x).min(1.0)
+    } else if x > 1.0 {
+        (2.0 - x).max(0.0)
+    } else {
+        x
     }
 }
 
@@ -629,8 +745,20 @@ impl ReflectionLaw for BoundedLaw {
                 lobe: Lobe::Mirror,
             });
         }
-        // A direction around the local pole: near-mirror cone or even component.
-        let near = u < 1.0 - s + s * (1.0 - self.mix[k]);
+        // Which component, and where u sits within its share (reused for the sign).
+        let near_share = s * (1.0 - self.mix[k]);
+        let near = u < 1.0 - s + near_share;
+        let (start, width) = if near {
+            (1.0 - s, near_share)
+        } else {
+            (1.0 - s + near_share, s * self.mix[k])
+        };
+        let t = if width > 0.0 {
+            ((u - start) / width).clamp(0.0, 1.0)
+        } else {
+            0.0
+        };
+        // η = sin²α from the component's normal-incidence shape (cos α drawn).
         let (c, lobe) = if near {
             (1.0 - u_dir[0] * (1.0 - self.cos_near), Lobe::Directional)
         } else {
@@ -643,23 +771,28 @@ impl ReflectionLaw for BoundedLaw {
             };
             (c, Lobe::Diffuse)
         };
-        let sin = (1.0 - c * c).max(0.0).sqrt();
-        let phi = TAU * u_dir[1];
-        let local = DVec3::new(sin * phi.cos(), sin * phi.sin(), c);
-        // Carry it to the mirror direction; fold what falls below the surface.
-        let mut wi = Frame::from_normal(mirror_local(wo)).to_world(local);
-        wi.z = wi.z.abs();
-        let wi = wi.normalize();
-        let pdf = self.pdf(wo, wi);
-        if pdf <= 0.0 {
+        let eta = ((1.0 - c) * (1.0 + c)).clamp(0.0, 1.0);
+        // Fold u₀ ± η into [0, 1], then the azimuth around the mirror's.
+        let u0 = (wo.x * wo.x + wo.y * wo.y).min(1.0);
+        let v = fold_unit(if t < 0.5 { u0 + eta } else { u0 - eta });
+        let half = if near {
+            self.near_azimuth_half_width_rad(u0, v)
+        } else {
+            PI
+        };
+        let dphi = (2.0 * u_dir[1] - 1.0) * half;
+        let phi = wo.y.atan2(wo.x) + PI + dphi;
+        let (sin_t, cos_t) = (v.sqrt(), (1.0 - v).max(0.0).sqrt());
+        let wi = DVec3::new(sin_t * phi.cos(), sin_t * phi.sin(), cos_t);
+        let (per_band, sampling) = self.densities(u0, v, dphi);
+        if sampling <= 0.0 || cos_t <= 0.0 {
             return None;
         }
-        let f = self.eval(wo, wi);
-        let weight = Bands(std::array::from_fn(|b| f[b] / pdf));
+        let weight = Bands(std::array::from_fn(|b| per_band[b] / sampling));
         Some(LawSample {
             wi,
             weight,
-            pdf: Some(pdf),
+            pdf: Some(2.0 * cos_t * sampling),
             lobe,
         })
     }
@@ -674,25 +807,17 @@ impl ReflectionLaw for BoundedLaw {
         if wi.z <= 0.0 {
             return Bands::ZERO;
         }
-        let (c1, c2) = Self::mirror_cosines(wo, wi);
-        Bands(std::array::from_fn(|b| {
-            if b >= self.bands || self.scattering[b] == 0.0 {
-                return 0.0;
-            }
-            let w = self.mix[b];
-            let (near, inner, outer) = (1.0 - w, w * self.even_inner[b], w * self.even_outer[b]);
-            let q = self.density(c1, near, inner, outer) + self.density(c2, near, inner, outer);
-            self.reflectance[b] * self.scattering[b] * q
-        }))
+        let (u, v, dphi) = Self::disk_coordinates(wo, wi);
+        let (per_band, _) = self.densities(u, v, dphi);
+        per_band * (2.0 * wi.z)
     }
 
     fn pdf(&self, wo: DVec3, wi: DVec3) -> f64 {
         if wi.z <= 0.0 {
             return 0.0;
         }
-        let (c1, c2) = Self::mirror_cosines(wo, wi);
-        let (near, inner, outer) = (self.pdf_near, self.pdf_even_inner, self.pdf_even_outer);
-        self.density(c1, near, inner, outer) + self.density(c2, near, inner, outer)
+        let (u, v, dphi) = Self::disk_coordinates(wo, wi);
+        2.0 * wi.z * self.densities(u, v, dphi).1
     }
 }
 
