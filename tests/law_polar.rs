@@ -413,6 +413,43 @@ fn zone_replacement_removes_the_specular_bump() {
 }
 
 #[test]
+fn a_dip_at_the_mirror_direction_is_kept() {
+    // A zone receiver measured below its neighbours' level keeps its own level
+    // (law::measured: the dip is scattered energy missing, not specular
+    // energy). Here the mirror receiver (−30° at 30° incidence) is set 10 dB
+    // below the lower of its neighbours outside the zone.
+    let path = data("plane_octave.toml");
+    let mut polar = load_polar_file(&path).unwrap();
+    let r = polar
+        .responses
+        .iter_mut()
+        .find(|r| r.band_hz == 1000.0 && r.incidence_deg == 30.0)
+        .unwrap();
+    let dip_db = r.level_db[9].min(r.level_db[15]) - 10.0;
+    r.level_db[12] = dip_db;
+    let r = r.clone();
+    let (law, _) = MeasuredPolarLaw::new(
+        &material(&[0.0], &[1.0]),
+        &BandSet::new(&[1000]).unwrap(),
+        &polar,
+        &path,
+        true,
+    )
+    .unwrap();
+    let mut expected = zone_replaced(&r.receiver_deg, &r.level_db, 30.0);
+    expected[12] = 10f64.powf(dip_db / 10.0);
+    let total: f64 = expected
+        .iter()
+        .enumerate()
+        .map(|(k, e)| e * f64::to_radians(if k == 0 || k == 36 { 2.5 } else { 5.0 }))
+        .sum();
+    let wo = DVec3::new(0.0, 0.5, 0.75f64.sqrt());
+    let got = law.eval_in_plane(wo, (-30f64).to_radians())[0];
+    let want = expected[12] / total;
+    assert!((got - want).abs() < 1e-9 * want, "{got} vs {want}");
+}
+
+#[test]
 fn patterns_interpolate_between_incidences_and_clamp_outside() {
     // Linear in angle on the energy pattern: at 15° (between 0° and 30°) the
     // density is the mean of the two neighbours; beyond the last measured
@@ -671,7 +708,8 @@ fn geometric_zone_follows_the_image_source() {
     // source 10 m, receivers 5 m, normal incidence: the line from the image
     // (0, −10) to the receiver at θ crosses z = 0 at x = 50 sin θ/(5 cos θ + 10):
     // 0.58 m at 10° (inside the ±0.6 m sample), 0.87 m at 15° (outside); so
-    // −10°..10° are replaced, linearly between the receivers at ±15°.
+    // −10°..10° are replaced, linearly between the receivers at ±15°, or keep
+    // their own level where it is lower (law::measured: a dip is kept).
     let path = data("plane_octave.toml");
     let mut polar = load_polar_file(&path).unwrap();
     polar.geometry.zone_half_width_deg = None;
@@ -695,7 +733,7 @@ fn geometric_zone_follows_the_image_source() {
     let ratio_15 = g(15.0) / e(21);
     for (k, deg) in [(16, -10.0), (17, -5.0), (18, 0.0), (19, 5.0), (20, 10.0)] {
         let f = (deg + 15.0) / 30.0;
-        let want = (e(15) + f * (e(21) - e(15))) * ratio_15;
+        let want = (e(15) + f * (e(21) - e(15))).min(e(k)) * ratio_15;
         assert!(
             (g(deg) - want).abs() < 1e-9 * want,
             "{deg}°: {} vs {want}",

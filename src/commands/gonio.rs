@@ -11,7 +11,11 @@ use polaray::bands::BandSet;
 use polaray::gonio::{self, ArcGeometry, GonioReport, GonioRequest};
 use std::str::FromStr;
 
+use polaray::gonio::CrossAxisView;
 use polaray::law::{LawKind, ReflectionLaw};
+use polaray::polar::zone::{
+    DEFAULT_RECEIVER_DISTANCE_M, DEFAULT_SAMPLE_WIDTH_M, DEFAULT_SOURCE_DISTANCE_M,
+};
 use polaray::room::Material;
 
 /// Options of `polaray gonio`.
@@ -24,7 +28,8 @@ pub struct Args {
     /// Name of the material in the room file.
     #[arg(long)]
     pub material: Option<String>,
-    /// A one-material TOML file (bands_hz, absorption, scattering, diffusion).
+    /// A one-material TOML file (bands_hz, absorption, scattering; optional
+    /// diffusion and polar).
     #[arg(long, conflicts_with = "room")]
     pub material_file: Option<PathBuf>,
     /// Reflection law to measure.
@@ -40,11 +45,18 @@ pub struct Args {
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
     /// Sample width across the measurement plane, m.
-    #[arg(long, default_value_t = 2.0)]
+    #[arg(long, default_value_t = DEFAULT_SAMPLE_WIDTH_M)]
     pub sample_width_m: f64,
-    /// Source and receiver distance from the sample centre, m.
-    #[arg(long, default_value_t = 10.0)]
-    pub distance_m: f64,
+    /// Source distance from the sample centre, m.
+    #[arg(long, default_value_t = DEFAULT_SOURCE_DISTANCE_M)]
+    pub source_distance_m: f64,
+    /// Receiver distance from the sample centre, m.
+    #[arg(long, default_value_t = DEFAULT_RECEIVER_DISTANCE_M)]
+    pub receiver_distance_m: f64,
+    /// The material is an extruded (1D) profile: build its law as for a
+    /// surface with a profile axis and measure across the extrusion axis.
+    #[arg(long)]
+    pub extruded: bool,
     /// Integrate the law's eval over each receiver instead of firing samples
     /// (noise-free; tests the law's eval, not its sampling).
     #[arg(long)]
@@ -52,14 +64,21 @@ pub struct Args {
     /// Print the result as JSON on stdout instead of a table.
     #[arg(long)]
     pub json: bool,
-    /// Also write the virtual measurement as a polar data file (JSON) for `polaray polar`.
+    /// Also write the virtual measurement as a polar data file (TOML) that
+    /// `polaray polar` and the `polar` law read.
     #[arg(long)]
     pub out: Option<PathBuf>,
+    /// Draw the polar charts and the d-against-s chart into this folder (the
+    /// charts of `polaray polar`).
+    #[arg(long, value_name = "DIR")]
+    pub plots: Option<PathBuf>,
 }
 
 #[derive(Serialize)]
 struct Output<'a> {
     material: &'a str,
+    /// Measured across the extrusion axis of a 1D profile.
+    extruded: bool,
     adjustments: &'a [String],
     #[serde(flatten)]
     report: &'a GonioReport,
@@ -95,45 +114,72 @@ fn load_material(args: &Args) -> anyhow::Result<(Material, BandSet)> {
 /// Runs the command.
 pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     let (material, bands) = load_material(&args)?;
-    // The same factory as the tracer; all bands on one law instance (a single
-    // reflection has no compounding weight noise), polar data used as
-    // rotationally symmetric so the arc in the local x–z plane sees them.
+    // The same factory as the tracer, all bands on one law instance (a single
+    // reflection has no compounding weight noise). Polar data are used as the
+    // tracer uses them on a surface without a profile axis (rotationally
+    // symmetric), or with --extruded as on one with an axis, measured across it.
     let kind = LawKind::from_str(&args.law)?;
+    if args.extruded && args.quadrature && kind == LawKind::Polar {
+        bail!(
+            "--quadrature integrates a density per steradian, which the extruded polar law \
+             does not have (it scatters on a cone); fire samples instead (drop --quadrature)"
+        );
+    }
     let all: Vec<usize> = (0..bands.len()).collect();
     let (law, adjustments): (Box<dyn ReflectionLaw>, Vec<String>) =
-        kind.build(&material, &bands, &all, false)?;
+        kind.build(&material, &bands, &all, args.extruded)?;
     for a in &adjustments {
         eprintln!("warning: {a}");
     }
+    let view;
+    let measured: &dyn ReflectionLaw = if args.extruded {
+        view = CrossAxisView::new(law.as_ref());
+        &view
+    } else {
+        law.as_ref()
+    };
     let request = GonioRequest {
         geometry: ArcGeometry {
             sample_width_m: args.sample_width_m,
-            source_distance_m: args.distance_m,
-            receiver_distance_m: args.distance_m,
+            source_distance_m: args.source_distance_m,
+            receiver_distance_m: args.receiver_distance_m,
             ..ArcGeometry::default()
         },
         incidence_deg: args.incidence_deg,
         bands_hz: bands.centres_hz().to_vec(),
     };
     let report = if args.quadrature {
-        gonio::measure_by_quadrature(law.as_ref(), &request, 60)?
+        gonio::measure_by_quadrature(measured, &request, 60)?
     } else {
-        gonio::measure(law.as_ref(), &request, args.samples, args.seed)?
+        gonio::measure(measured, &request, args.samples, args.seed)?
     };
+    if let Some(dir) = &args.plots {
+        let file = gonio::to_polar_file(&report, &material.name);
+        let written = super::polar::write_file_charts(&file, dir)
+            .with_context(|| format!("{}: cannot draw the charts", dir.display()))?;
+        if !args.json {
+            println!("wrote {} charts to {}", written.len(), dir.display());
+        }
+    }
     if let Some(out) = &args.out {
         let file = gonio::to_polar_file(&report, &material.name);
-        let text = serde_json::to_string_pretty(&file)?;
+        let text = toml::to_string(&file)
+            .with_context(|| format!("{}: cannot write the polar file", out.display()))?;
         polaray::output::write_atomic(out, text.as_bytes())
             .with_context(|| format!("{}: cannot write the polar file", out.display()))?;
     }
     if args.json {
         let output = Output {
             material: &material.name,
+            extruded: args.extruded,
             adjustments: &adjustments,
             report: &report,
         };
         println!("{}", serde_json::to_string_pretty(&output)?);
     } else {
+        if args.extruded {
+            println!("Extruded profile: law built as for a surface with a profile axis, arc across the axis.");
+        }
         print!("{}", table(&material.name, &report));
     }
     Ok(ExitCode::SUCCESS)

@@ -4,19 +4,21 @@
 use serde::Serialize;
 
 use crate::law::CalibrationArc;
+use crate::polar::zone::{
+    DEFAULT_RECEIVER_DISTANCE_M, DEFAULT_SAMPLE_WIDTH_M, DEFAULT_SOURCE_DISTANCE_M,
+};
 use crate::polar::{Arrangement, GoniometerGeometry};
 
 /// Layout of the virtual goniometer, in the x–z plane of the local frame.
 ///
-/// Defaults: a 2.0 m wide sample, source and receivers 10 m from its centre,
-/// 37 receivers at 5° from −90° to 90°, each collecting within ±2.5° along the
-/// arc and a ±2.5° slab across it. With these distances the image-source zone at
-/// normal incidence is the 5 receivers 0°, ±5°, ±10° (edges ±11.4°), the case
-/// of the check values in reference.md §1 and §3 (M = 37, M_s = 5); the
-/// receivers stand 5 sample widths away, so the zone stays narrow. Choice of
-/// ours (common practice, no source). The ±2.5° slab makes each cell a 5° × 5°
-/// patch: thin enough to stay in the plane, thick enough to catch about 4 % of
-/// an even reflection.
+/// Defaults: those of `polaray polar` ([`crate::polar::zone`]): a 1.5 m wide
+/// sample, the source 10 m and the receivers 5 m from its centre, 37 receivers
+/// at 5° from −90° to 90°, each collecting within ±2.5° along the arc and a
+/// ±2.5° slab across it. The image-source zone at normal incidence is then the
+/// 5 receivers 0°, ±5°, ±10° (edges ±12.9°), the case of the check values in
+/// reference.md §1 and §3 (M = 37, M_s = 5). The ±2.5° slab (our choice;
+/// common practice, no source) makes each cell a 5° × 5° patch: thin enough
+/// to stay in the plane, thick enough to catch about 4 % of an even reflection.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct ArcGeometry {
     /// Sample width across the measurement plane, m.
@@ -36,9 +38,9 @@ pub struct ArcGeometry {
 impl Default for ArcGeometry {
     fn default() -> Self {
         Self {
-            sample_width_m: 2.0,
-            source_distance_m: 10.0,
-            receiver_distance_m: 10.0,
+            sample_width_m: DEFAULT_SAMPLE_WIDTH_M,
+            source_distance_m: DEFAULT_SOURCE_DISTANCE_M,
+            receiver_distance_m: DEFAULT_RECEIVER_DISTANCE_M,
             receivers: 37,
             receiver_step_deg: 5.0,
             slab_half_width_deg: 2.5,
@@ -192,9 +194,10 @@ mod tests {
 
     #[test]
     fn default_zone_is_five_receivers() {
-        // Derived here: with source and receivers at R = 10 m and W = 2 m, the
-        // image-source line to the receiver at θ meets the sample at R tan(θ/2),
-        // so the edge is 2 atan(W/2R) = 11.42° and 0°, ±5°, ±10° are in.
+        // Derived here: image source at (0, −10 m), receiver at 5 m and angle θ:
+        // the line meets the sample at x = 10 · 5 sin θ / (10 + 5 cos θ), which
+        // is 0.58 m at 10° and 0.87 m at 15° against the 0.75 m half-width, so
+        // 0°, ±5°, ±10° are in; the edge solves x(θ) = 0.75 m.
         let g = ArcGeometry::default();
         let zone = g.specular_zone(0.0);
         let inside: Vec<f64> = g
@@ -206,9 +209,10 @@ mod tests {
             .collect();
         assert_eq!(inside, vec![-10.0, -5.0, 0.0, 5.0, 10.0]);
         let (lo, hi) = g.zone_edges_deg(0.0);
-        let edge = 2.0 * (0.1f64).atan().to_degrees();
-        approx::assert_relative_eq!(hi, edge, epsilon = 1e-9);
-        approx::assert_relative_eq!(lo, -edge, epsilon = 1e-9);
+        let x = |t: f64| 50.0 * t.to_radians().sin() / (10.0 + 5.0 * t.to_radians().cos());
+        approx::assert_relative_eq!(x(hi), 0.75, epsilon = 1e-9);
+        approx::assert_relative_eq!(x(-lo), 0.75, epsilon = 1e-9);
+        assert!(hi > 10.0 && hi < 15.0);
         assert_eq!(g.calibration_arc().unwrap(), CalibrationArc::standard());
     }
 

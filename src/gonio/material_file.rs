@@ -7,6 +7,7 @@
 //! absorption = [0.10, 0.10, 0.08, 0.08, 0.07, 0.07]
 //! scattering = [0.05, 0.15, 0.40, 0.60, 0.70, 0.70]
 //! diffusion  = [0.12, 0.15, 0.30, 0.45, 0.50, 0.50]   # optional
+//! polar = "slatted.polar.toml"    # optional polar data, relative to this file
 //! ```
 
 use std::path::{Path, PathBuf};
@@ -43,6 +44,7 @@ struct Raw {
     absorption: Vec<f64>,
     scattering: Vec<f64>,
     diffusion: Option<Vec<f64>>,
+    polar: Option<PathBuf>,
 }
 
 /// Reads and checks a material file.
@@ -87,6 +89,10 @@ pub fn parse_material_file(text: &str, path: &Path) -> Result<MaterialFile, Mate
             .map(|s| s.to_string_lossy().into_owned())
             .unwrap_or_else(|| "material".into())
     });
+    let polar_file = raw.polar.map(|p| match path.parent() {
+        Some(dir) if p.is_relative() => dir.join(p),
+        _ => p,
+    });
     Ok(MaterialFile {
         bands,
         material: Material {
@@ -94,7 +100,7 @@ pub fn parse_material_file(text: &str, path: &Path) -> Result<MaterialFile, Mate
             absorption,
             scattering,
             diffusion,
-            polar_file: None,
+            polar_file,
         },
     })
 }
@@ -113,6 +119,16 @@ mod tests {
         .unwrap();
         assert_eq!(ok.material.name, "panel");
         assert!(ok.material.diffusion.is_none());
+        assert!(ok.material.polar_file.is_none());
+        let with_polar = parse_material_file(
+            "bands_hz = [500]\nabsorption = [0.1]\nscattering = [0.3]\npolar = \"a.polar.toml\"\n",
+            Path::new("data/panel.toml"),
+        )
+        .unwrap();
+        assert_eq!(
+            with_polar.material.polar_file.as_deref(),
+            Some(Path::new("data/a.polar.toml"))
+        );
         assert_eq!(ok.material.scattering[1], 0.4);
         let e = parse_material_file(
             "bands_hz = [500, 1000]\nabsorption = [0.1]\nscattering = [0.3, 0.4]\n",

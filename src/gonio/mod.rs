@@ -20,17 +20,21 @@
 //!   non-mirror energy is spread over the arc in proportion to the readings.
 //!   Hence s_z = s (1 − f), f the zone share of the non-mirror readings
 //!   (reference.md §3), independent of the slab width.
+//! - Extruded (1D) profiles scatter across their extrusion axis only:
+//!   [`CrossAxisView`] lays the arc in that plane.
 //! - Reported per band: levels (dB re the total), s_z, d (equal-area), the
 //!   bound d_max(s_z), d/d_max, the law's own scattering coefficient
 //!   1 − mirror/reflected, and the energy balance.
 
 pub mod arc;
 pub mod coefficients;
+pub mod cross_axis;
 pub mod material_file;
 pub mod measure;
 pub mod polar_file;
 
 pub use arc::{ArcError, ArcGeometry};
+pub use cross_axis::CrossAxisView;
 pub use material_file::{load_material_file, parse_material_file, MaterialFile, MaterialFileError};
 pub use measure::{
     measure, measure_by_quadrature, BandReport, EnergyBalance, GonioError, GonioReport,

@@ -9,8 +9,10 @@
 //! set by the sample size, not by the room surface, whose geometric reflection
 //! is an infinite-plane mirror. So the zone receivers' levels are replaced by
 //! the level their neighbours outside the zone give (linear in angle for plane
-//! data; inverse-angle weighting of the four nearest for hemispherical data)
-//! before the pattern is used: the mirror energy is then not counted twice,
+//! data; inverse-angle weighting of the four nearest for hemispherical data),
+//! or kept where they are lower (a dip at the mirror direction, as diffusers
+//! show near their design frequency, is scattered energy missing there, not
+//! specular energy), before the pattern is used: the mirror energy is then not counted twice,
 //! and the law uses the same s as the other laws, so law comparisons differ
 //! only in the shape of the scattered part. The zone is the set of receivers
 //! the image source reaches through the sample (reference.md §2), or those

@@ -360,7 +360,9 @@ fn specular_zone(geometry: &GoniometerGeometry, p: &Prepared, hemisphere: bool) 
 /// Replaces the energies of zone receivers by the level their outside
 /// neighbours give: linear in angle between the nearest outside receivers on
 /// each side (plane), or inverse-angle weighting of the four nearest outside
-/// receivers (hemisphere). `None` when no receiver lies outside the zone.
+/// receivers (hemisphere); a zone receiver measured below that level keeps
+/// its own (a dip at the mirror direction is scattered energy missing, not
+/// specular energy). `None` when no receiver lies outside the zone.
 fn without_zone(p: &Prepared, zone: &[bool], hemisphere: bool) -> Option<Vec<f64>> {
     let outside: Vec<usize> = (0..zone.len()).filter(|&i| !zone[i]).collect();
     if outside.is_empty() {
@@ -380,7 +382,8 @@ fn without_zone(p: &Prepared, zone: &[bool], hemisphere: bool) -> Option<Vec<f64
             near.sort_by(|a, b| a.0.total_cmp(&b.0));
             near.truncate(4);
             let w: f64 = near.iter().map(|n| 1.0 / n.0.max(1e-9)).sum();
-            energy[i] = near.iter().map(|n| n.1 / n.0.max(1e-9)).sum::<f64>() / w;
+            let neighbours = near.iter().map(|n| n.1 / n.0.max(1e-9)).sum::<f64>() / w;
+            energy[i] = neighbours.min(p.energy[i]);
         } else {
             let theta = p.receivers_deg[i][0];
             let left = outside
@@ -391,7 +394,7 @@ fn without_zone(p: &Prepared, zone: &[bool], hemisphere: bool) -> Option<Vec<f64
                 .iter()
                 .filter(|&&j| p.receivers_deg[j][0] > theta)
                 .min_by(|&&a, &&b| p.receivers_deg[a][0].total_cmp(&p.receivers_deg[b][0]));
-            energy[i] = match (left, right) {
+            let neighbours = match (left, right) {
                 (Some(&l), Some(&r)) => {
                     let (tl, tr) = (p.receivers_deg[l][0], p.receivers_deg[r][0]);
                     let f = (theta - tl) / (tr - tl);
@@ -400,6 +403,7 @@ fn without_zone(p: &Prepared, zone: &[bool], hemisphere: bool) -> Option<Vec<f64
                 (Some(&j), None) | (None, Some(&j)) => p.energy[j],
                 (None, None) => p.energy[outside[0]],
             };
+            energy[i] = neighbours.min(p.energy[i]);
         }
     }
     Some(energy)
