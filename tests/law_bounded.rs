@@ -62,6 +62,23 @@ fn a_pair_above_the_bound_is_refused() {
         panic!("d = 0.6 at s = 0.5 must be refused");
     };
     assert!(err.to_string().contains("panel"), "{err}");
+    // The same words as `polaray check` for the same pair (issue contract).
+    let check = polaray::room::pairs::check_material_pairs(
+        &[material(0.5, Some(0.6))],
+        &bands,
+        &polaray::polar::zone::ZoneGeometry::default(),
+    );
+    assert_eq!(check, vec![err.to_string()]);
+    // Within the rounding slack of the checks, the pair is taken at the bound.
+    let range = BoundedLaw::reachable_diffusion(0.5, &CalibrationArc::standard()).unwrap();
+    let (_, adjustments) =
+        BoundedLaw::new(&material(0.5, Some(range.bound + 0.004)), &bands).unwrap();
+    assert_eq!(adjustments.len(), 1, "{adjustments:?}");
+    assert!(
+        adjustments[0].reason.contains("slack"),
+        "{:?}",
+        adjustments[0]
+    );
 }
 
 #[test]

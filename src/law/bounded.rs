@@ -48,8 +48,11 @@
 //! (1/9 at s = 0, falling to 0 at s = 1) and d_T is within 0.002 of
 //! d_max(min(s, s*)) (the ±2.5° slab lets a sliver of the cone edge into the
 //! ±10° cells). Outside it:
-//! - d above the bound d_max(min(s, s*)) (+1e-9): refused with
-//!   [`BoundedLawError::AboveBound`], naming material, band, s, d, d_max and the excess;
+//! - d above the bound d_max(min(s, s*)) by more than the rounding slack of
+//!   the room checks (`room::pairs::PAIR_TOLERANCE`, 0.005): refused with
+//!   [`BoundedLawError::AboveBound`], in the words `polaray check` uses;
+//! - d above the bound by less than that slack: treated as at the bound (w = 1),
+//!   reported in the [`Adjustment`] list;
 //! - d between d_T(s) and the bound: w = 1, reported in the [`Adjustment`] list;
 //! - d below d_A(s): w = 0, reported in the [`Adjustment`] list.
 //!
@@ -108,11 +111,9 @@ use crate::geometry::mirror_local;
 use crate::gonio::coefficients::{
     diffusion_bound_for_scattering, diffusion_equal_area, zone_ratio_of_full_diffusion,
 };
+use crate::polar::bound::BoundViolation;
+use crate::room::pairs::PAIR_TOLERANCE;
 use crate::room::Material;
-
-/// Allowance above the bound before a (s, d) pair is refused (rounding of
-/// the inputs only; common practice, no source).
-const BOUND_ALLOWANCE: f64 = 1e-9;
 
 /// The receiver arc the law is calibrated on: normal incidence, receivers
 /// centred on the normal, the specular zone the central `zone_receivers`.
@@ -249,30 +250,16 @@ pub enum BoundedLawError {
         /// The value given.
         value: f64,
     },
-    /// The (s, d) pair lies above the scattering–diffusion bound.
-    #[error(
-        "material '{material}', {band_hz} Hz: s = {scattering:.3}, d = {diffusion:.3} lies above \
-         the scattering-diffusion bound d_max = {bound:.3} by {excess:.3}; no surface can show \
-         this pair on a {receivers}-receiver arc with a {zone_receivers}-receiver specular zone \
-         (reference.md §3): lower d or raise s"
-    )]
+    /// The (s, d) pair lies above the scattering–diffusion bound; the text is
+    /// the one `polaray check` prints for the same pair.
+    #[error("materials.{material}: at {band_hz} Hz {violation}")]
     AboveBound {
         /// Material name.
         material: String,
         /// Band centre, Hz.
         band_hz: u32,
-        /// Scattering coefficient s.
-        scattering: f64,
-        /// Diffusion coefficient d.
-        diffusion: f64,
-        /// The bound d_max(min(s, s*)).
-        bound: f64,
-        /// d − d_max.
-        excess: f64,
-        /// Receivers M of the calibration arc.
-        receivers: usize,
-        /// Zone receivers M_s.
-        zone_receivers: usize,
+        /// The violation, as the polar module states it.
+        violation: BoundViolation,
     },
     /// The calibration arc is not usable.
     #[error("{0}")]
@@ -492,16 +479,21 @@ impl BoundedLaw {
             let s = check("scattering", material.scattering[b])?;
             let d = check("diffusion", diffusion[b])?;
             let bound = model.bound(s);
-            if d > bound + BOUND_ALLOWANCE {
+            // The same slack as the room checks, so `check` and the law agree.
+            if d - PAIR_TOLERANCE > bound + 1e-12 {
                 return Err(BoundedLawError::AboveBound {
                     material: material.name.clone(),
                     band_hz,
-                    scattering: s,
-                    diffusion: d,
-                    bound,
-                    excess: d - bound,
-                    receivers: arc.receivers,
-                    zone_receivers: arc.zone_receivers,
+                    violation: BoundViolation::Exceeds {
+                        s,
+                        d,
+                        s_used: s.min(model.s_star),
+                        s_star: model.s_star,
+                        d_max: bound,
+                        excess: d - bound,
+                        receivers: arc.receivers,
+                        zone_receivers: arc.zone_receivers,
+                    },
                 });
             }
             let (w, used, reason) = solve_mix(&model, s, d);
@@ -696,6 +688,14 @@ fn solve_mix(model: &ArcModel, s: f64, d: f64) -> (f64, f64, Option<String>) {
         return (0.0, low, reason);
     }
     if d >= high {
+        let bound = model.bound(s);
+        if d > bound {
+            let reason = format!(
+                "d lies above the bound d_max = {bound:.4} by less than the rounding slack \
+                 {PAIR_TOLERANCE}; treated as the most even response the law gives ({high:.4})"
+            );
+            return (1.0, high, Some(reason));
+        }
         let reason = (d > high + 1e-12).then(|| {
             format!(
                 "d is within the bound but above the most even response the law gives \
