@@ -128,3 +128,30 @@ fn every_law_conserves_energy_per_reflection() {
         }
     }
 }
+
+#[test]
+fn a_users_own_law_traces_like_the_law_it_wraps() {
+    // An own law (law::OwnLaw, one band per pass) that builds the split law
+    // gives the split law's echograms bit for bit when every band has the
+    // same coefficients (the same streams choose the same lobes; common
+    // practice, no source), and its build errors name the material.
+    use polaray::law::{OwnLaw, ReflectionLaw, SplitLaw};
+    let room = room_with_diffuser(0.4, 0.15);
+    let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.rays = 1500;
+    options.duration_s = 0.15;
+    let split = trace::run(&room, &options).unwrap();
+    let own = OwnLaw::new("wrapped split", |m, _bands| {
+        Ok(Box::new(SplitLaw::new(m, 1)) as Box<dyn ReflectionLaw>)
+    });
+    let traced = trace::run_with_laws(&room, &options, &own, &|_| {}).unwrap();
+    assert_eq!(traced.stats.passes, 2);
+    for (a, b) in split.echograms.iter().zip(&traced.echograms) {
+        assert_eq!(a.echogram, b.echogram);
+    }
+    let failing = OwnLaw::new("fussy", |_m, _bands| Err("needs data".to_string()));
+    let err = trace::run_with_laws(&room, &options, &failing, &|_| {})
+        .unwrap_err()
+        .to_string();
+    assert!(err.contains("walls") && err.contains("needs data"), "{err}");
+}

@@ -70,6 +70,120 @@ pub struct RoomLaws {
     pub warnings: Vec<String>,
 }
 
+/// Anything that gives every surface of a room its reflection law: the shipped
+/// laws ([`LawKind`]) or a user's own ([`OwnLaw`], `examples/custom_law.rs`).
+/// The tracer asks for the band groups, then for the laws of each group.
+pub trait LawSet: Sync {
+    /// Name of the law, as reported.
+    fn law_name(&self) -> String;
+
+    /// Groups of band indices that can share one ray (see
+    /// [`LawKind::band_groups`]); one tracing pass runs per group.
+    fn band_groups(&self, room: &Room) -> Vec<Vec<usize>>;
+
+    /// The law instances of `room` for the bands in `active`.
+    fn laws_for_room(
+        &self,
+        room: &Room,
+        active: &[usize],
+        fallback: Option<LawKind>,
+    ) -> Result<RoomLaws, LawError>;
+}
+
+impl LawSet for LawKind {
+    fn law_name(&self) -> String {
+        self.name().to_string()
+    }
+
+    fn band_groups(&self, room: &Room) -> Vec<Vec<usize>> {
+        LawKind::band_groups(*self, room)
+    }
+
+    fn laws_for_room(
+        &self,
+        room: &Room,
+        active: &[usize],
+        fallback: Option<LawKind>,
+    ) -> Result<RoomLaws, LawError> {
+        self.build_for_room(room, active, fallback)
+    }
+}
+
+/// A user's own law, given as a function that builds the law of one material
+/// for one band (the material and band set it receives hold that band only).
+/// Traced one band per pass, so the law need not handle several bands.
+pub struct OwnLaw<F> {
+    name: String,
+    build: F,
+}
+
+impl<F> OwnLaw<F>
+where
+    F: Fn(&Material, &BandSet) -> Result<Box<dyn ReflectionLaw>, String> + Sync,
+{
+    /// A law called `name`, built per material and band by `build`; an error
+    /// it returns is reported with the material's name.
+    pub fn new(name: &str, build: F) -> Self {
+        Self {
+            name: name.to_string(),
+            build,
+        }
+    }
+}
+
+impl<F> LawSet for OwnLaw<F>
+where
+    F: Fn(&Material, &BandSet) -> Result<Box<dyn ReflectionLaw>, String> + Sync,
+{
+    fn law_name(&self) -> String {
+        self.name.clone()
+    }
+
+    fn band_groups(&self, room: &Room) -> Vec<Vec<usize>> {
+        (0..room.settings.bands.len()).map(|b| vec![b]).collect()
+    }
+
+    fn laws_for_room(
+        &self,
+        room: &Room,
+        active: &[usize],
+        _fallback: Option<LawKind>,
+    ) -> Result<RoomLaws, LawError> {
+        let [band] = active else {
+            return Err(LawError::BadData {
+                material: String::new(),
+                law: "own",
+                reason: format!("{} bands in one pass; an own law serves one", active.len()),
+            });
+        };
+        let mut out = RoomLaws {
+            laws: Vec::new(),
+            surface_law: Vec::with_capacity(room.surfaces.len()),
+            fallbacks: Vec::new(),
+            warnings: Vec::new(),
+        };
+        let mut index: HashMap<usize, u32> = HashMap::new();
+        for surface in &room.surfaces {
+            if let Some(&i) = index.get(&surface.material) {
+                out.surface_law.push(i);
+                continue;
+            }
+            let material = &room.materials[surface.material];
+            let (one, set) = single_band_inputs(material, &room.settings.bands, *band);
+            let law = (self.build)(&one, &set).map_err(|reason| LawError::BadData {
+                material: material.name.clone(),
+                law: "own",
+                reason: format!("{}: {reason}", self.name),
+            })?;
+            let i = out.laws.len() as u32;
+            out.laws.push(Box::new(SingleBand::new(law, *band)));
+            index.insert(surface.material, i);
+            out.surface_law.push(i);
+        }
+        Ok(out)
+    }
+}
+
 impl LawKind {
     /// Every law name accepted by `--law`, in the order of the variants.
     pub const NAME_LIST: &'static [&'static str] = &["split", "bounded", "polar"];

@@ -11,6 +11,7 @@ use super::ray::{NoLog, QueryLog, Scene, Tally};
 use super::result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
 use crate::accel::Bvh;
 use crate::bands::Bands;
+use crate::law::LawSet;
 use crate::receiver::{default_radius_m, lateral_axis, DetectionSphere, Echogram};
 use crate::room::inside::distance_to_triangle_m;
 use crate::room::{estimates, Room};
@@ -34,7 +35,18 @@ pub fn run_with_progress(
     options: &TraceOptions,
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<TraceResult, TraceError> {
-    run_logged::<NoLog>(room, options, progress).map(|(result, _)| result)
+    run_logged::<NoLog>(room, options, &options.law, progress).map(|(result, _)| result)
+}
+
+/// As [`run_with_progress`], with the laws given by `laws` (a user's own law,
+/// for instance) instead of `options.law`; `options.fallback` is passed on.
+pub fn run_with_laws(
+    room: &Room,
+    options: &TraceOptions,
+    laws: &dyn LawSet,
+    progress: &(dyn Fn(usize) + Sync),
+) -> Result<TraceResult, TraceError> {
+    run_logged::<NoLog>(room, options, laws, progress).map(|(result, _)| result)
 }
 
 /// As [`run`], also returning every closest-hit query the rays made (origin,
@@ -44,13 +56,14 @@ pub fn run_recording_queries(
     room: &Room,
     options: &TraceOptions,
 ) -> Result<(TraceResult, Vec<(DVec3, DVec3)>), TraceError> {
-    run_logged::<Vec<(DVec3, DVec3)>>(room, options, &|_| {})
+    run_logged::<Vec<(DVec3, DVec3)>>(room, options, &options.law, &|_| {})
 }
 
 /// The whole run, with a query log per chunk concatenated in chunk order.
 fn run_logged<L: QueryLog + Default + Send>(
     room: &Room,
     options: &TraceOptions,
+    law_set: &dyn LawSet,
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<(TraceResult, L), TraceError> {
     let mut log = L::default();
@@ -68,7 +81,7 @@ fn run_logged<L: QueryLog + Default + Send>(
             what: "receivers",
         });
     }
-    let groups = options.law.band_groups(room);
+    let groups = law_set.band_groups(room);
     let bands = room.settings.bands.len();
     let speed_m_s = room.settings.air.speed_of_sound_m_s();
     let air_per_m = estimates::air_attenuation_per_m(room);
@@ -171,7 +184,7 @@ fn run_logged<L: QueryLog + Default + Send>(
     let mut tally = Tally::default();
     let mut fallbacks = Vec::new();
     for group in &groups {
-        let laws = options.law.build_for_room(room, group, options.fallback)?;
+        let laws = law_set.laws_for_room(room, group, options.fallback)?;
         for note in laws.fallbacks.iter().chain(&laws.warnings) {
             if !fallbacks.contains(note) && !warnings.contains(note) {
                 if laws.fallbacks.contains(note) {
