@@ -24,6 +24,7 @@ fn tiled_box(size: DVec3, n: usize) -> Room {
         scattering: Bands::splat(0.3),
         diffusion: None,
         polar_file: None,
+        goniometer: None,
     };
     let centre = size * 0.5;
     let mut surfaces = Vec::new();

@@ -296,3 +296,15 @@ fn impossible_scattering_diffusion_pair() {
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(!stderr.contains("250 Hz"), "{stderr}");
 }
+
+#[test]
+fn an_unusable_material_goniometer_is_named() {
+    rejects(
+        "tests/data/rooms/bad-goniometer.toml",
+        &[
+            "materials.panel.goniometer",
+            "specular zone",
+            "37 receivers",
+        ],
+    );
+}

@@ -139,3 +139,38 @@ fn a_missing_polar_file_is_named() {
         "{err}"
     );
 }
+
+#[test]
+fn the_bounded_law_uses_the_goniometer_the_material_names() {
+    // With a 2.4 m sample (source 10 m, receivers 5 m) the zone holds 9 of 37
+    // receivers and d_max(0.5) = 0.729 (reference.md §3; see room::pairs):
+    // d = 0.6 is possible there, though not on the default arc (0.453). The
+    // goniometer then measures on that same arrangement and gets d back
+    // (Monte Carlo, 10^6 shots; tolerance 0.02 as the bounded-law contract).
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("wide.toml");
+    std::fs::write(
+        &path,
+        "bands_hz = [1000]\nabsorption = [0.1]\nscattering = [0.5]\ndiffusion = [0.6]\n\
+         [goniometer]\nsample_width_m = 2.4\n",
+    )
+    .unwrap();
+    let output = polaray()
+        .args(["gonio", "--law", "bounded", "--json", "--material-file"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let json: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    let zone = json["zone"].as_array().unwrap();
+    assert_eq!(zone.iter().filter(|z| z.as_bool().unwrap()).count(), 9);
+    let b = &json["bands"][0];
+    let d = b["diffusion"].as_f64().unwrap();
+    assert!((d - 0.6).abs() < 0.02, "d {d}");
+    let s = b["law_scattering"].as_f64().unwrap();
+    assert!((s - 0.5).abs() < 0.01, "s {s}");
+}

@@ -112,6 +112,7 @@ fn round_trip(
         scattering: Bands::from_slice(&[s]),
         diffusion: None,
         polar_file: Some(path.to_path_buf()),
+        goniometer: None,
     };
     let bands = BandSet::new(&[band_hz]).unwrap();
     let (law, _) = LawKind::Polar

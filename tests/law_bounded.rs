@@ -14,6 +14,7 @@ fn material(s: f64, d: Option<f64>) -> Material {
         scattering: Bands::from_slice(&[s]),
         diffusion: d.map(|d| Bands::from_slice(&[d])),
         polar_file: None,
+        goniometer: None,
     }
 }
 
@@ -63,11 +64,7 @@ fn a_pair_above_the_bound_is_refused() {
     };
     assert!(err.to_string().contains("panel"), "{err}");
     // The same words as `polaray check` for the same pair (issue contract).
-    let check = polaray::room::pairs::check_material_pairs(
-        &[material(0.5, Some(0.6))],
-        &bands,
-        &polaray::polar::zone::ZoneGeometry::default(),
-    );
+    let check = polaray::room::pairs::check_material_pairs(&[material(0.5, Some(0.6))], &bands);
     assert_eq!(check, vec![err.to_string()]);
     // Within the rounding slack of the checks, the pair is taken at the bound.
     let range = BoundedLaw::reachable_diffusion(0.5, &CalibrationArc::standard()).unwrap();

@@ -18,6 +18,7 @@ fn material(s: f64, d: Option<f64>) -> Material {
         scattering: Bands::from_slice(&[s]),
         diffusion: d.map(|d| Bands::from_slice(&[d])),
         polar_file: None,
+        goniometer: None,
     }
 }
 

@@ -31,6 +31,7 @@ fn material(alpha: &[f64], s: &[f64]) -> Material {
         scattering: Bands::from_slice(s),
         diffusion: None,
         polar_file: None,
+        goniometer: None,
     }
 }
 

@@ -13,9 +13,6 @@ use std::str::FromStr;
 
 use polaray::gonio::CrossAxisView;
 use polaray::law::{LawKind, ReflectionLaw};
-use polaray::polar::zone::{
-    DEFAULT_RECEIVER_DISTANCE_M, DEFAULT_SAMPLE_WIDTH_M, DEFAULT_SOURCE_DISTANCE_M,
-};
 use polaray::room::Material;
 
 /// Options of `polaray gonio`.
@@ -44,15 +41,18 @@ pub struct Args {
     /// Seed of the random streams.
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
-    /// Sample width across the measurement plane, m.
-    #[arg(long, default_value_t = DEFAULT_SAMPLE_WIDTH_M)]
-    pub sample_width_m: f64,
-    /// Source distance from the sample centre, m.
-    #[arg(long, default_value_t = DEFAULT_SOURCE_DISTANCE_M)]
-    pub source_distance_m: f64,
-    /// Receiver distance from the sample centre, m.
-    #[arg(long, default_value_t = DEFAULT_RECEIVER_DISTANCE_M)]
-    pub receiver_distance_m: f64,
+    /// Sample width across the measurement plane, m [default: the material's
+    /// goniometer, else 1.5].
+    #[arg(long)]
+    pub sample_width_m: Option<f64>,
+    /// Source distance from the sample centre, m [default: the material's
+    /// goniometer, else 10].
+    #[arg(long)]
+    pub source_distance_m: Option<f64>,
+    /// Receiver distance from the sample centre, m [default: the material's
+    /// goniometer, else 5].
+    #[arg(long)]
+    pub receiver_distance_m: Option<f64>,
     /// The material is an extruded (1D) profile: build its law as for a
     /// surface with a profile axis and measure across the extrusion axis.
     #[arg(long)]
@@ -139,11 +139,18 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         law.as_ref()
     };
     let request = GonioRequest {
-        geometry: ArcGeometry {
-            sample_width_m: args.sample_width_m,
-            source_distance_m: args.source_distance_m,
-            receiver_distance_m: args.receiver_distance_m,
-            ..ArcGeometry::default()
+        geometry: {
+            // The material's own goniometer (what its d means), unless overridden.
+            let base = material
+                .goniometer
+                .as_ref()
+                .map_or_else(ArcGeometry::default, ArcGeometry::from);
+            ArcGeometry {
+                sample_width_m: args.sample_width_m.unwrap_or(base.sample_width_m),
+                source_distance_m: args.source_distance_m.unwrap_or(base.source_distance_m),
+                receiver_distance_m: args.receiver_distance_m.unwrap_or(base.receiver_distance_m),
+                ..base
+            }
         },
         incidence_deg: args.incidence_deg,
         bands_hz: bands.centres_hz().to_vec(),

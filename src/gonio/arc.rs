@@ -48,6 +48,21 @@ impl Default for ArcGeometry {
     }
 }
 
+impl From<&crate::room::DiffusionGoniometer> for ArcGeometry {
+    /// The arrangement a material's diffusion coefficients were measured
+    /// with, with the default slab.
+    fn from(g: &crate::room::DiffusionGoniometer) -> Self {
+        Self {
+            sample_width_m: g.sample_width_m,
+            source_distance_m: g.source_distance_m,
+            receiver_distance_m: g.receiver_distance_m,
+            receivers: g.receivers,
+            receiver_step_deg: g.receiver_step_deg,
+            ..Self::default()
+        }
+    }
+}
+
 /// A goniometer layout that cannot be used.
 #[derive(Debug, thiserror::Error, PartialEq)]
 #[error("goniometer geometry: {0}")]

@@ -8,6 +8,12 @@
 //! scattering = [0.05, 0.15, 0.40, 0.60, 0.70, 0.70]
 //! diffusion  = [0.12, 0.15, 0.30, 0.45, 0.50, 0.50]   # optional
 //! polar = "slatted.polar.toml"    # optional polar data, relative to this file
+//! [goniometer]                    # optional: what d was measured with (defaults shown)
+//! sample_width_m = 1.5
+//! source_distance_m = 10.0
+//! receiver_distance_m = 5.0
+//! receivers = 37
+//! receiver_step_deg = 5.0
 //! ```
 
 use std::path::{Path, PathBuf};
@@ -45,6 +51,7 @@ struct Raw {
     scattering: Vec<f64>,
     diffusion: Option<Vec<f64>>,
     polar: Option<PathBuf>,
+    goniometer: Option<crate::room::file::GoniometerFile>,
 }
 
 /// Reads and checks a material file.
@@ -93,6 +100,10 @@ pub fn parse_material_file(text: &str, path: &Path) -> Result<MaterialFile, Mate
         Some(dir) if p.is_relative() => dir.join(p),
         _ => p,
     });
+    let goniometer = raw.goniometer.as_ref().map(|g| g.resolve());
+    if let Some(problem) = goniometer.as_ref().and_then(|g| g.problem()) {
+        return Err(fail(format!("goniometer: {problem}")));
+    }
     Ok(MaterialFile {
         bands,
         material: Material {
@@ -101,6 +112,7 @@ pub fn parse_material_file(text: &str, path: &Path) -> Result<MaterialFile, Mate
             scattering,
             diffusion,
             polar_file,
+            goniometer,
         },
     })
 }

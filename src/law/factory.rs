@@ -11,8 +11,11 @@ use std::fmt;
 use std::str::FromStr;
 
 use super::single_band::{single_band_inputs, SingleBand};
-use super::{BoundedLaw, BoundedLawError, MeasuredPolarLaw, ReflectionLaw, SplitLaw};
+use super::{
+    BoundedLaw, BoundedLawError, CalibrationArc, MeasuredPolarLaw, ReflectionLaw, SplitLaw,
+};
 use crate::bands::BandSet;
+use crate::gonio::ArcGeometry;
 use crate::polar::load_polar_file;
 use crate::room::{Material, Room};
 
@@ -223,14 +226,22 @@ impl LawKind {
                     law: "bounded",
                     reason: e.to_string(),
                 };
+                // Calibrated on the arc the material's d was measured with.
+                let arc = match &material.goniometer {
+                    Some(g) => ArcGeometry::from(g)
+                        .calibration_arc()
+                        .map_err(|e| bad(BoundedLawError::BadArc(e.to_string())))?,
+                    None => CalibrationArc::standard(),
+                };
                 let (law, adjustments): (Box<dyn ReflectionLaw>, _) = match active {
                     [band] => {
                         let (one, set) = single_band_inputs(material, bands, *band);
-                        let (law, adj) = BoundedLaw::new(&one, &set).map_err(bad)?;
+                        let (law, adj) = BoundedLaw::with_arc(&one, &set, &arc).map_err(bad)?;
                         (Box::new(SingleBand::new(Box::new(law), *band)), adj)
                     }
                     _ => {
-                        let (law, adj) = BoundedLaw::new(material, bands).map_err(bad)?;
+                        let (law, adj) =
+                            BoundedLaw::with_arc(material, bands, &arc).map_err(bad)?;
                         (Box::new(law), adj)
                     }
                 };

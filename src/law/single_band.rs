@@ -45,6 +45,7 @@ pub fn single_band_inputs(
         scattering: one(material.scattering),
         diffusion: material.diffusion.map(one),
         polar_file: material.polar_file.clone(),
+        goniometer: material.goniometer.clone(),
     };
     let set = BandSet::new(&[bands.centres_hz()[band]]).expect("a band of a valid set is valid");
     (m, set)
@@ -89,6 +90,7 @@ mod tests {
             scattering: Bands::from_slice(&[0.0, 0.0, 0.0]),
             diffusion: None,
             polar_file: None,
+            goniometer: None,
         };
         let (one, set) = single_band_inputs(&m, &bands, 1);
         let law = SingleBand::new(Box::new(SplitLaw::new(&one, set.len())), 1);

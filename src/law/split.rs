@@ -128,6 +128,7 @@ mod tests {
             scattering: Bands::from_slice(&s),
             diffusion: None,
             polar_file: None,
+            goniometer: None,
         }
     }
 

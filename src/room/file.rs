@@ -102,6 +102,43 @@ pub struct MaterialFile {
     pub diffusion: Option<Vec<Real>>,
     /// Polar response file, relative to the room file.
     pub polar: Option<String>,
+    /// The goniometer the diffusion coefficients were measured with.
+    pub goniometer: Option<GoniometerFile>,
+}
+
+/// `[materials.NAME.goniometer]`: every key optional, defaults as
+/// [`super::DiffusionGoniometer::default`].
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GoniometerFile {
+    /// Sample width, m.
+    pub sample_width_m: Option<Real>,
+    /// Source distance, m.
+    pub source_distance_m: Option<Real>,
+    /// Receiver distance, m.
+    pub receiver_distance_m: Option<Real>,
+    /// Number of receivers.
+    pub receivers: Option<usize>,
+    /// Receiver spacing, degrees.
+    pub receiver_step_deg: Option<Real>,
+}
+
+impl GoniometerFile {
+    /// The arrangement, defaults filled in (not yet checked: see
+    /// [`super::DiffusionGoniometer::problem`]).
+    #[must_use]
+    pub fn resolve(&self) -> super::DiffusionGoniometer {
+        let d = super::DiffusionGoniometer::default();
+        super::DiffusionGoniometer {
+            sample_width_m: self.sample_width_m.map_or(d.sample_width_m, |r| r.0),
+            source_distance_m: self.source_distance_m.map_or(d.source_distance_m, |r| r.0),
+            receiver_distance_m: self
+                .receiver_distance_m
+                .map_or(d.receiver_distance_m, |r| r.0),
+            receivers: self.receivers.unwrap_or(d.receivers),
+            receiver_step_deg: self.receiver_step_deg.map_or(d.receiver_step_deg, |r| r.0),
+        }
+    }
 }
 
 /// `[[surfaces]]`.

@@ -112,11 +112,7 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
         }
     }
     if b.problems.is_empty() {
-        let pair_problems = pairs::check_material_pairs(
-            &materials,
-            &settings.bands,
-            &crate::polar::zone::ZoneGeometry::default(),
-        );
+        let pair_problems = pairs::check_material_pairs(&materials, &settings.bands);
         b.problems.extend(pair_problems);
     }
 
@@ -320,6 +316,18 @@ impl Builder {
                 }
                 resolved
             });
+            let goniometer = m.goniometer.as_ref().map(|g| {
+                let geometry = g.resolve();
+                if let Some(problem) = geometry.problem() {
+                    self.problem(format!("materials.{name}.goniometer: {problem}"));
+                }
+                if m.diffusion.is_none() {
+                    self.warn(format!(
+                        "materials.{name}.goniometer: given but the material has no diffusion coefficients, so nothing uses it"
+                    ));
+                }
+                geometry
+            });
             names.insert(name.clone(), materials.len());
             materials.push(Material {
                 name: name.clone(),
@@ -327,6 +335,7 @@ impl Builder {
                 scattering,
                 diffusion,
                 polar_file,
+                goniometer,
             });
         }
         (materials, names)

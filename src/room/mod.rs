@@ -13,4 +13,6 @@ pub mod polygon;
 pub mod topology;
 
 pub use load::{load_room, LoadedRoom, RoomError};
-pub use model::{Material, Receiver, Room, Settings, Source, Surface, Triangle};
+pub use model::{
+    DiffusionGoniometer, Material, Receiver, Room, Settings, Source, Surface, Triangle,
+};

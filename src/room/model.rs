@@ -22,6 +22,111 @@ pub struct Material {
     pub diffusion: Option<Bands>,
     /// Polar response file for the `polar` law, resolved relative to the room file.
     pub polar_file: Option<PathBuf>,
+    /// The goniometer the diffusion coefficients were measured (or predicted)
+    /// with; `None` means [`DiffusionGoniometer::default`].
+    pub goniometer: Option<DiffusionGoniometer>,
+}
+
+/// A single-plane goniometer arrangement: what a diffusion coefficient means
+/// depends on it (how many receivers, how many in the specular zone), so the
+/// scattering–diffusion check and the bounded law's calibration use it.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct DiffusionGoniometer {
+    /// Sample width across the measurement plane, m.
+    pub sample_width_m: f64,
+    /// Source distance from the sample centre, m.
+    pub source_distance_m: f64,
+    /// Receiver distance from the sample centre, m.
+    pub receiver_distance_m: f64,
+    /// Number of receivers, odd, centred on the normal.
+    pub receivers: usize,
+    /// Receiver spacing, degrees.
+    pub receiver_step_deg: f64,
+}
+
+impl Default for DiffusionGoniometer {
+    /// The defaults of `polaray polar` ([`crate::polar::zone`]): a 1.5 m
+    /// sample, source 10 m, receivers 5 m, 37 receivers at 5° (5 in the zone).
+    fn default() -> Self {
+        use crate::polar::zone::{
+            DEFAULT_RECEIVER_DISTANCE_M, DEFAULT_SAMPLE_WIDTH_M, DEFAULT_SOURCE_DISTANCE_M,
+        };
+        Self {
+            sample_width_m: DEFAULT_SAMPLE_WIDTH_M,
+            source_distance_m: DEFAULT_SOURCE_DISTANCE_M,
+            receiver_distance_m: DEFAULT_RECEIVER_DISTANCE_M,
+            receivers: 37,
+            receiver_step_deg: 5.0,
+        }
+    }
+}
+
+impl DiffusionGoniometer {
+    /// The arrangement at normal incidence, for the scattering–diffusion check.
+    #[must_use]
+    pub fn zone_geometry(&self) -> crate::polar::zone::ZoneGeometry {
+        let c = (self.receivers as f64 - 1.0) / 2.0;
+        crate::polar::zone::ZoneGeometry {
+            receiver_deg: (0..self.receivers)
+                .map(|i| (i as f64 - c) * self.receiver_step_deg)
+                .collect(),
+            incidence_deg: 0.0,
+            zone: crate::polar::zone::ZoneRule::Sample {
+                sample_width_m: self.sample_width_m,
+                sample_depth_m: None,
+                source_distance_m: self.source_distance_m,
+                receiver_distance_m: self.receiver_distance_m,
+            },
+        }
+    }
+
+    /// What makes the arrangement unusable, if anything: lengths must be
+    /// positive, receivers an odd number within ±90°, and the specular zone
+    /// at normal incidence an odd, centred run smaller than the arc (so that
+    /// the bound and the bounded law's calibration are defined).
+    #[must_use]
+    pub fn problem(&self) -> Option<String> {
+        let lengths = [
+            ("sample_width_m", self.sample_width_m),
+            ("source_distance_m", self.source_distance_m),
+            ("receiver_distance_m", self.receiver_distance_m),
+            ("receiver_step_deg", self.receiver_step_deg),
+        ];
+        for (name, v) in lengths {
+            if !(v.is_finite() && v > 0.0) {
+                return Some(format!("{name} = {v} must be a positive number"));
+            }
+        }
+        if self.receivers < 3 || self.receivers.is_multiple_of(2) {
+            return Some(format!(
+                "receivers = {}: give an odd number, at least 3, so one sits on the normal",
+                self.receivers
+            ));
+        }
+        let extent = (self.receivers as f64 - 1.0) / 2.0 * self.receiver_step_deg;
+        if extent > 90.0 + 1e-9 {
+            return Some(format!(
+                "{} receivers at {}° reach ±{extent}°, past the surface; use fewer or a smaller step",
+                self.receivers, self.receiver_step_deg
+            ));
+        }
+        let zone = self.zone_geometry().membership();
+        let count = zone.iter().filter(|&&z| z).count();
+        let centre = (self.receivers - 1) / 2;
+        let centred = count % 2 == 1
+            && zone
+                .iter()
+                .enumerate()
+                .all(|(i, &z)| z == (i.abs_diff(centre) <= (count - 1) / 2));
+        if !centred || count >= self.receivers {
+            return Some(format!(
+                "the specular zone at normal incidence holds {count} of {} receivers; it must be \
+                 an odd, centred run smaller than the arc (change the sample width or the distances)",
+                self.receivers
+            ));
+        }
+        None
+    }
 }
 
 /// One planar polygon of the room as the user described it.

@@ -18,16 +18,13 @@ pub const PAIR_TOLERANCE: f64 = 0.005;
 
 /// Problems for every band of every material whose diffusion coefficient lies
 /// above the bound for its scattering coefficient by more than
-/// [`PAIR_TOLERANCE`], checked with `geometry`. Materials without diffusion
-/// data are skipped.
-pub fn check_material_pairs(
-    materials: &[Material],
-    bands: &BandSet,
-    geometry: &ZoneGeometry,
-) -> Vec<String> {
+/// [`PAIR_TOLERANCE`], checked with the material's own goniometer (or the
+/// default one). Materials without diffusion data are skipped.
+pub fn check_material_pairs(materials: &[Material], bands: &BandSet) -> Vec<String> {
     let mut problems = Vec::new();
     for m in materials {
         let Some(d) = m.diffusion else { continue };
+        let geometry: &ZoneGeometry = &m.goniometer.clone().unwrap_or_default().zone_geometry();
         for (b, hz) in bands.centres_hz().iter().enumerate() {
             let s = m.scattering[b];
             // The tolerance forgives rounding of d, never a value out of range.
@@ -77,13 +74,46 @@ mod tests {
             scattering: Bands::from_slice(&[0.1, 0.5]),
             diffusion: Some(Bands::from_slice(&[0.6, 0.4])),
             polar_file: None,
+            goniometer: None,
         };
-        let p = check_material_pairs(&[m], &bands, &ZoneGeometry::default());
+        let p = check_material_pairs(std::slice::from_ref(&m), &bands);
         assert_eq!(p.len(), 1, "{p:?}");
         assert!(
             p[0].contains("materials.panel") && p[0].contains("500 Hz") && p[0].contains("exceeds"),
             "{}",
             p[0]
         );
+    }
+
+    #[test]
+    fn the_materials_own_goniometer_sets_the_bound() {
+        // A 2.4 m sample (source 10 m, receivers 5 m) puts 9 of 37 receivers in
+        // the zone (the line to 20° meets the sample at 1.16 m, to 25° at
+        // 1.45 m, half-width 1.2 m). reference.md §3 with M = 37, M_s = 9:
+        // w(0.5) = 0.25/9 + 0.25/28, d_max = (1 − w)/(36 w) = 0.729; with the
+        // default zone (M_s = 5) d_max(0.5) = 67/148 = 0.453.
+        let bands = BandSet::new(&[1000]).unwrap();
+        let mut m = Material {
+            name: "panel".into(),
+            absorption: Bands::from_slice(&[0.1]),
+            scattering: Bands::from_slice(&[0.5]),
+            diffusion: Some(Bands::from_slice(&[0.6])),
+            polar_file: None,
+            goniometer: None,
+        };
+        assert_eq!(
+            check_material_pairs(std::slice::from_ref(&m), &bands).len(),
+            1
+        );
+        let wide = crate::room::DiffusionGoniometer {
+            sample_width_m: 2.4,
+            ..Default::default()
+        };
+        assert_eq!(wide.zone_geometry().size().zone_receivers, 9);
+        assert!(wide.problem().is_none());
+        m.goniometer = Some(wide);
+        assert!(check_material_pairs(&[m.clone()], &bands).is_empty());
+        m.diffusion = Some(Bands::from_slice(&[0.74]));
+        assert_eq!(check_material_pairs(&[m], &bands).len(), 1);
     }
 }

@@ -13,6 +13,7 @@ pub fn uniform_material(name: &str, alpha: f64, scattering: f64) -> Material {
         scattering: Bands::splat(scattering),
         diffusion: None,
         polar_file: None,
+        goniometer: None,
     }
 }
 
