@@ -34,15 +34,17 @@ fn reproduces_s_and_d_on_a_grid_up_to_the_bound() {
     let bands = BandSet::new(&[1000]).unwrap();
     let arc = CalibrationArc::standard();
     let mut points = 0;
+    let mut worst: f64 = 0.0;
     for s in [0.1, 0.3, 0.5, 0.7, 0.9] {
         let range = BoundedLaw::reachable_diffusion(s, &arc).unwrap();
         for t in [0.05, 0.35, 0.65, 0.97] {
             let d = range.least_even + t * (range.most_even - range.least_even);
             let (law, adjustments) = BoundedLaw::new(&material(s, Some(d)), &bands).unwrap();
             assert!(adjustments.is_empty(), "s {s} d {d}: {adjustments:?}");
-            let report = gonio::measure_by_quadrature(&law, &request(), 400).unwrap();
+            let report = gonio::measure_by_quadrature(&law, &request(), 200).unwrap();
             let band = &report.bands[0];
             let measured_d = band.diffusion.unwrap();
+            worst = worst.max((measured_d - d).abs());
             assert!(
                 (measured_d - d).abs() < 0.02,
                 "s {s}: asked d {d}, measured {measured_d}"
@@ -53,6 +55,7 @@ fn reproduces_s_and_d_on_a_grid_up_to_the_bound() {
         }
     }
     assert!(points >= 20);
+    eprintln!("{points} (s, d) points, largest |d − asked| = {worst:.4}");
 }
 
 #[test]
