@@ -168,6 +168,12 @@ fn run_logged<L: QueryLog + Default + Send>(
     // One pass per band group (see `LawKind::band_groups`); ray i uses the
     // same stream in every pass (common random numbers across bands).
     let total_rays = options.rays as u64 * sources.len() as u64;
+    if options.first_ray.checked_add(total_rays).is_none() {
+        return Err(TraceError::Option(format!(
+            "first ray {} plus {total_rays} rays runs past the last stream index",
+            options.first_ray
+        )));
+    }
     let mut tally = Tally::default();
     let mut fallbacks = Vec::new();
     for group in &groups {
@@ -339,6 +345,7 @@ fn build_scene<'a>(
         laws: laws.laws,
         bands,
         seed: options.seed,
+        first_ray: options.first_ray,
         rays_per_source: options.rays,
         start_weight,
         max_path_m: speed_m_s * options.duration_s,
