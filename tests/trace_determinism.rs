@@ -138,3 +138,23 @@ fn batches_with_stream_offsets_partition_a_longer_run() {
         }
     }
 }
+
+/// `run_batches` builds the laws once, yet each batch equals a separate run
+/// with the matching `first_ray`, bit for bit.
+#[test]
+fn batches_in_one_call_equal_separate_runs() {
+    let room = room();
+    let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.rays = trace::RAYS_PER_CHUNK + 9;
+    options.duration_s = 0.3;
+    options.first_ray = 11;
+    let batched = trace::run_batches(&room, &options, 3, &|_| {}).unwrap();
+    assert_eq!(batched.len(), 3);
+    let per_batch = (options.rays * room.sources.len()) as u64;
+    for (b, got) in batched.iter().enumerate() {
+        let mut one = options.clone();
+        one.first_ray = 11 + b as u64 * per_batch;
+        let alone = trace::run(&room, &one).unwrap();
+        assert_eq!(bits(got), bits(&alone), "batch {b}");
+    }
+}

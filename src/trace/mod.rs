@@ -51,7 +51,7 @@ mod runner;
 pub use options::{Roulette, TraceError, TraceOptions};
 pub use ray::{NoLog, QueryLog};
 pub use result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
-pub use runner::{run, run_recording_queries, run_with_progress, RAYS_PER_CHUNK};
+pub use runner::{run, run_batches, run_recording_queries, run_with_progress, RAYS_PER_CHUNK};
 
 #[cfg(doc)]
 use crate::room::Room;
