@@ -142,6 +142,28 @@ fn verdicts_follow_from_the_numbers_shown() {
     }
     // The test comparison exercises every verdict.
     assert_eq!(seen.len(), 4, "verdicts seen: {seen:?}");
+
+    // In the report, each cell's verdict follows from the S and N it prints.
+    let html = std::fs::read_to_string(shared_run().join("report.html")).unwrap();
+    let mut cells = 0;
+    for cell in html.split("<td class=\"v v-").skip(1) {
+        let class = cell.split('"').next().unwrap();
+        let Some(numbers) = cell
+            .split("<span class=\"vn\">")
+            .nth(1)
+            .and_then(|r| r.split("</span>").next())
+        else {
+            continue;
+        };
+        let parts: Vec<&str> = numbers.split_whitespace().collect(); // S x · N y
+        let (Ok(s), Ok(n)) = (parts[1].parse::<f64>(), parts[4].parse::<f64>()) else {
+            assert_eq!(class, "undefined", "{numbers}");
+            continue;
+        };
+        assert_eq!(class, rule(s, n), "cell `{numbers}`");
+        cells += 1;
+    }
+    assert!(cells > 100, "only {cells} cells");
 }
 
 #[test]

@@ -5,6 +5,7 @@ use std::fmt::Write as _;
 use super::charts::Chart;
 use super::{band_label, pair_slug, run_styles, RunStyle};
 use crate::compare::document::{ComparisonDocument, Spread, SpreadKind, SpreadRow};
+use crate::compare::verdict::judge;
 use crate::compare::{Parameter, Verdict};
 
 /// Escapes text for HTML element content and attribute values.
@@ -218,6 +219,19 @@ fn short_run(doc: &ComparisonDocument, id: &str, kind: SpreadKind) -> String {
     }
 }
 
+/// "S … · N …" with as many decimals (2 to 4) as it takes for the verdict
+/// rule, applied to the printed numbers, to give the verdict shown.
+fn shown_s_n(s: f64, n: f64, verdict: Verdict) -> String {
+    for d in 2..=4 {
+        let text = format!("S {s:.d$} · N {n:.d$}");
+        let round = |x: f64| format!("{x:.d$}").parse::<f64>().unwrap_or(x);
+        if judge(round(s), round(n)) == verdict {
+            return text;
+        }
+    }
+    format!("S {s:.4} · N {n:.4}")
+}
+
 fn verdict_cell(doc: &ComparisonDocument, kind: SpreadKind, row: &SpreadRow) -> String {
     let Some(d) = row.differences.get(row.deciding) else {
         return format!(
@@ -237,7 +251,7 @@ fn verdict_cell(doc: &ComparisonDocument, kind: SpreadKind, row: &SpreadRow) -> 
         se_text(p, d.jnd)
     );
     let numbers = match (d.spread_jnd, d.noise_jnd) {
-        (Some(s), Some(n)) => format!("S {s:.2} · N {n:.2}"),
+        (Some(s), Some(n)) => shown_s_n(s, n, row.verdict),
         (Some(s), None) => format!("S {s:.2} · N –"),
         _ => "S – · N –".into(),
     };
