@@ -30,6 +30,8 @@ pub enum Command {
     Profile(commands::profile::Args),
     /// Measure a material's reflection law on a virtual goniometer: polar response, s, d and the bound.
     Gonio(commands::gonio::Args),
+    /// Trace a room under several reflection laws and surface treatments and judge, per receiver and parameter, whether the differences can be heard.
+    Compare(commands::compare::Args),
 }
 
 #[cfg(test)]

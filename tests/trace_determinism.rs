@@ -92,3 +92,69 @@ fn recording_queries_changes_nothing_and_sees_every_segment() {
     assert_eq!(queries[0].0, room.sources[0].position);
     assert!(queries.iter().all(|(_, d)| (d.length() - 1.0).abs() < 1e-9));
 }
+
+/// Batches set `first_ray`: two batches of n rays with stream offsets 0 and n
+/// trace exactly the rays of one run of 2n rays (one source), so their mean
+/// echogram equals that run's up to the order of floating-point sums.
+#[test]
+fn batches_with_stream_offsets_partition_a_longer_run() {
+    let mut room = room();
+    room.sources.truncate(1);
+    let n = 2 * trace::RAYS_PER_CHUNK;
+    let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.duration_s = 0.4;
+    // The default radius depends on the ray count; batches need a fixed one.
+    options.receiver_radius_m = Some(0.5);
+    options.rays = 2 * n;
+    let whole = trace::run(&room, &options).unwrap();
+    options.rays = n;
+    let first = trace::run(&room, &options).unwrap();
+    options.first_ray = n as u64;
+    let second = trace::run(&room, &options).unwrap();
+    assert_eq!(
+        whole.stats.segments,
+        first.stats.segments + second.stats.segments
+    );
+    assert_ne!(
+        bits(&first),
+        bits(&second),
+        "the batches must trace different rays"
+    );
+    for (w, (a, b)) in whole
+        .echograms
+        .iter()
+        .zip(first.echograms.iter().zip(&second.echograms))
+    {
+        for (bin, (x, y)) in a.echogram.energy.iter().zip(&b.echogram.energy).enumerate() {
+            for band in 0..2 {
+                let mean = 0.5 * (x[band] + y[band]);
+                let expected = w.echogram.energy[bin][band];
+                // Rounding only: the sums run in a different order (common practice, no source).
+                assert!(
+                    (mean - expected).abs() <= 1e-12 * expected.abs().max(1e-30),
+                    "bin {bin} band {band}: {mean} vs {expected}"
+                );
+            }
+        }
+    }
+}
+
+/// `run_batches` builds the laws once, yet each batch equals a separate run
+/// with the matching `first_ray`, bit for bit.
+#[test]
+fn batches_in_one_call_equal_separate_runs() {
+    let room = room();
+    let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.rays = trace::RAYS_PER_CHUNK + 9;
+    options.duration_s = 0.3;
+    options.first_ray = 11;
+    let batched = trace::run_batches(&room, &options, 3, &|_| {}).unwrap();
+    assert_eq!(batched.len(), 3);
+    let per_batch = (options.rays * room.sources.len()) as u64;
+    for (b, got) in batched.iter().enumerate() {
+        let mut one = options.clone();
+        one.first_ray = 11 + b as u64 * per_batch;
+        let alone = trace::run(&room, &one).unwrap();
+        assert_eq!(bits(got), bits(&alone), "batch {b}");
+    }
+}

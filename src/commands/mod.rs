@@ -2,6 +2,7 @@
 
 pub mod analyze;
 pub mod check;
+pub mod compare;
 pub mod gonio;
 pub mod polar;
 pub mod profile;
@@ -20,5 +21,6 @@ pub fn dispatch(command: Command) -> anyhow::Result<ExitCode> {
         Command::Polar(a) => polar::run(a),
         Command::Profile(a) => profile::run(a),
         Command::Gonio(a) => gonio::run(a),
+        Command::Compare(a) => compare::run(a),
     }
 }

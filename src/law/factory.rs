@@ -73,6 +73,17 @@ pub struct RoomLaws {
     pub warnings: Vec<String>,
 }
 
+/// The arc the bounded law is calibrated on for `material`: its own
+/// goniometer's, or [`CalibrationArc::standard`] when it names none.
+pub fn material_arc(material: &Material) -> Result<CalibrationArc, BoundedLawError> {
+    match &material.goniometer {
+        Some(g) => ArcGeometry::from(g)
+            .calibration_arc()
+            .map_err(|e| BoundedLawError::BadArc(e.to_string())),
+        None => Ok(CalibrationArc::standard()),
+    }
+}
+
 /// Anything that gives every surface of a room its reflection law: the shipped
 /// laws ([`LawKind`]) or a user's own ([`OwnLaw`], `examples/custom_law.rs`).
 /// The tracer asks for the band groups, then for the laws of each group.
@@ -227,12 +238,7 @@ impl LawKind {
                     reason: e.to_string(),
                 };
                 // Calibrated on the arc the material's d was measured with.
-                let arc = match &material.goniometer {
-                    Some(g) => ArcGeometry::from(g)
-                        .calibration_arc()
-                        .map_err(|e| bad(BoundedLawError::BadArc(e.to_string())))?,
-                    None => CalibrationArc::standard(),
-                };
+                let arc = material_arc(material).map_err(bad)?;
                 let (law, adjustments): (Box<dyn ReflectionLaw>, _) = match active {
                     [band] => {
                         let (one, set) = single_band_inputs(material, bands, *band);

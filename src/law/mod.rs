@@ -17,7 +17,7 @@ use glam::DVec3;
 use crate::bands::Bands;
 
 pub use bounded::{Adjustment, BoundedLaw, BoundedLawError, CalibrationArc, DiffusionRange};
-pub use factory::{LawError, LawKind, LawSet, OwnLaw, RoomLaws};
+pub use factory::{material_arc, LawError, LawKind, LawSet, OwnLaw, RoomLaws};
 pub use measured::MeasuredPolarLaw;
 pub use split::SplitLaw;
 

@@ -138,6 +138,15 @@ pub fn draw_polar_chart(path: &Path, chart: &PolarChart) -> Result<(), PlotError
     write_chart!(path, |root| render_polar(root, chart))
 }
 
+/// Draws a polar response chart on any plotters drawing area (for charts
+/// embedded elsewhere, e.g. inline SVG in the comparison report); errors as text.
+pub fn render_polar_chart<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    chart: &PolarChart,
+) -> Result<(), String> {
+    render_polar(root, chart)
+}
+
 fn render_polar<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     chart: &PolarChart,

@@ -139,6 +139,33 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
     })
 }
 
+/// One material table in the room-file format (`[materials.<name>]`), checked
+/// as the room loader checks its own: `band_count` values per list, each in
+/// [0, 1], the (scattering, diffusion) pairs within the bound, the polar file
+/// resolved relative to `dir`. Other files (comparison files) use it to define
+/// materials. Returns the material and its warnings, or every problem found,
+/// each naming `materials.<name>.<field>`.
+pub fn material_from_table(
+    name: &str,
+    table: &MaterialFile,
+    bands: &BandSet,
+    dir: &Path,
+) -> Result<(Material, Vec<String>), Vec<String>> {
+    let mut b = Builder::default();
+    let material = b.material(name, table, bands.len(), dir);
+    if b.problems.is_empty() {
+        b.problems.extend(pairs::check_material_pairs(
+            std::slice::from_ref(&material),
+            bands,
+        ));
+    }
+    if b.problems.is_empty() {
+        Ok((material, b.warnings))
+    } else {
+        Err(b.problems)
+    }
+}
+
 /// The checked geometry that sources and receivers are placed in.
 struct Scene<'a> {
     surfaces: &'a [Surface],
@@ -300,45 +327,56 @@ impl Builder {
         let mut materials = Vec::new();
         let mut names = BTreeMap::new();
         for (name, m) in table {
-            let absorption = self.coefficients(name, "absorption", &m.absorption, band_count);
-            let scattering = self.coefficients(name, "scattering", &m.scattering, band_count);
-            let diffusion = m
-                .diffusion
-                .as_ref()
-                .map(|d| self.coefficients(name, "diffusion", d, band_count));
-            let polar_file = m.polar.as_ref().map(|p| {
-                let resolved = dir.join(p);
-                if !resolved.is_file() {
-                    self.warn(format!(
-                        "materials.{name}.polar: {} does not exist (needed only by the polar-response law)",
-                        resolved.display()
-                    ));
-                }
-                resolved
-            });
-            let goniometer = m.goniometer.as_ref().map(|g| {
-                let geometry = g.resolve();
-                if let Some(problem) = geometry.problem() {
-                    self.problem(format!("materials.{name}.goniometer: {problem}"));
-                }
-                if m.diffusion.is_none() {
-                    self.warn(format!(
-                        "materials.{name}.goniometer: given but the material has no diffusion coefficients, so nothing uses it"
-                    ));
-                }
-                geometry
-            });
             names.insert(name.clone(), materials.len());
-            materials.push(Material {
-                name: name.clone(),
-                absorption,
-                scattering,
-                diffusion,
-                polar_file,
-                goniometer,
-            });
+            materials.push(self.material(name, m, band_count, dir));
         }
         (materials, names)
+    }
+
+    /// One material table, its polar file resolved relative to `dir`.
+    fn material(
+        &mut self,
+        name: &str,
+        m: &MaterialFile,
+        band_count: usize,
+        dir: &Path,
+    ) -> Material {
+        let absorption = self.coefficients(name, "absorption", &m.absorption, band_count);
+        let scattering = self.coefficients(name, "scattering", &m.scattering, band_count);
+        let diffusion = m
+            .diffusion
+            .as_ref()
+            .map(|d| self.coefficients(name, "diffusion", d, band_count));
+        let polar_file = m.polar.as_ref().map(|p| {
+            let resolved = dir.join(p);
+            if !resolved.is_file() {
+                self.warn(format!(
+                    "materials.{name}.polar: {} does not exist (needed only by the polar-response law)",
+                    resolved.display()
+                ));
+            }
+            resolved
+        });
+        let goniometer = m.goniometer.as_ref().map(|g| {
+            let geometry = g.resolve();
+            if let Some(problem) = geometry.problem() {
+                self.problem(format!("materials.{name}.goniometer: {problem}"));
+            }
+            if m.diffusion.is_none() {
+                self.warn(format!(
+                    "materials.{name}.goniometer: given but the material has no diffusion coefficients, so nothing uses it"
+                ));
+            }
+            geometry
+        });
+        Material {
+            name: name.to_string(),
+            absorption,
+            scattering,
+            diffusion,
+            polar_file,
+            goniometer,
+        }
     }
 
     /// One per-band coefficient list: right length, finite, within [0, 1].

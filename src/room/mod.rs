@@ -12,7 +12,7 @@ pub mod pairs;
 pub mod polygon;
 pub mod topology;
 
-pub use load::{load_room, LoadedRoom, RoomError};
+pub use load::{load_room, material_from_table, LoadedRoom, RoomError};
 pub use model::{
     DiffusionGoniometer, Material, Receiver, Room, Settings, Source, Surface, Triangle,
 };

@@ -38,7 +38,8 @@
 //!   deterministically from geometry and visibility, e^(−m d) / (4π d²) at
 //!   t = d / c, so it is neither double counted nor noisy.
 //! - **Determinism.** Ray i (over all sources, source-major) draws, in every pass, only from
-//!   `Stream::new(seed, i)`. Rays are traced in fixed chunks of
+//!   `Stream::new(seed, first_ray + i)` (`first_ray` is 0 unless a caller
+//!   traces batches of one larger set, see [`TraceOptions::first_ray`]). Rays are traced in fixed chunks of
 //!   [`RAYS_PER_CHUNK`]; each chunk fills its own echograms and statistics,
 //!   which are added in chunk order, so any thread count gives bit-identical results.
 
@@ -50,7 +51,9 @@ mod runner;
 pub use options::{Roulette, TraceError, TraceOptions};
 pub use ray::{NoLog, QueryLog};
 pub use result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
-pub use runner::{run, run_recording_queries, run_with_laws, run_with_progress, RAYS_PER_CHUNK};
+pub use runner::{
+    run, run_batches, run_recording_queries, run_with_laws, run_with_progress, RAYS_PER_CHUNK,
+};
 
 #[cfg(doc)]
 use crate::room::Room;

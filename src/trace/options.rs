@@ -41,6 +41,12 @@ pub struct TraceOptions {
     pub receiver_radius_m: Option<f64>,
     /// Russian roulette; `None` lets rays run to the full duration.
     pub roulette: Option<Roulette>,
+    /// Stream index of the run's first ray (default 0): ray i of the run
+    /// (source-major) draws from `Stream::new(seed, first_ray + i)`. Batches
+    /// of one comparison set it to b · rays · sources, so batch b traces the
+    /// same rays under every law and treatment (common random numbers) and
+    /// no two batches share a ray.
+    pub first_ray: u64,
 }
 
 impl TraceOptions {
@@ -60,6 +66,7 @@ impl TraceOptions {
             bin_s: s.bin_s,
             receiver_radius_m: None,
             roulette: Some(Roulette::default()),
+            first_ray: 0,
         }
     }
 }

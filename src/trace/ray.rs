@@ -27,6 +27,8 @@ pub(super) struct Scene<'a> {
     pub laws: Vec<Box<dyn ReflectionLaw>>,
     pub bands: usize,
     pub seed: u64,
+    /// Stream index of ray 0 ([`super::TraceOptions::first_ray`]).
+    pub first_ray: u64,
     pub rays_per_source: usize,
     /// 1/N in each used band, 0 elsewhere.
     pub start_weight: Bands,
@@ -98,7 +100,7 @@ impl Scene<'_> {
         let source = (index / self.rays_per_source as u64) as usize;
         let receivers = self.spheres.len();
         let axes = &self.lateral_axes[source * receivers..(source + 1) * receivers];
-        let mut rng = Stream::new(self.seed, index);
+        let mut rng = Stream::new(self.seed, self.first_ray + index);
         let mut dir = uniform_sphere(rng.uniform2());
         let mut pos = self.source_positions[source];
         // Wall weights only; the air factor follows from the path length.

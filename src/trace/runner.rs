@@ -35,7 +35,14 @@ pub fn run_with_progress(
     options: &TraceOptions,
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<TraceResult, TraceError> {
-    run_logged::<NoLog>(room, options, &options.law, progress).map(|(result, _)| result)
+    first_batch(run_logged::<NoLog>(
+        room,
+        options,
+        &options.law,
+        1,
+        progress,
+    ))
+    .map(|(result, _)| result)
 }
 
 /// As [`run_with_progress`], with the laws given by `laws` (a user's own law,
@@ -46,7 +53,29 @@ pub fn run_with_laws(
     laws: &dyn LawSet,
     progress: &(dyn Fn(usize) + Sync),
 ) -> Result<TraceResult, TraceError> {
-    run_logged::<NoLog>(room, options, laws, progress).map(|(result, _)| result)
+    first_batch(run_logged::<NoLog>(room, options, laws, 1, progress)).map(|(result, _)| result)
+}
+
+/// Traces `batches` batches of `options.rays` rays per source with one setup:
+/// batch b uses the streams of a run with `first_ray` = `options.first_ray` +
+/// b · rays · sources, so its result equals that run's, but the reflection
+/// laws and the geometry are built once for all batches. Every result's
+/// `wall_time_s` is that of the whole call. Zero batches give an empty list.
+pub fn run_batches(
+    room: &Room,
+    options: &TraceOptions,
+    batches: usize,
+    progress: &(dyn Fn(usize) + Sync),
+) -> Result<Vec<TraceResult>, TraceError> {
+    run_logged::<NoLog>(room, options, &options.law, batches as u64, progress)
+        .map(|all| all.into_iter().map(|(result, _)| result).collect())
+}
+
+/// The first batch of a one-batch call.
+fn first_batch<T>(all: Result<Vec<T>, TraceError>) -> Result<T, TraceError> {
+    all?.into_iter()
+        .next()
+        .ok_or_else(|| TraceError::Option("no batch was traced".into()))
 }
 
 /// As [`run`], also returning every closest-hit query the rays made (origin,
@@ -56,17 +85,24 @@ pub fn run_recording_queries(
     room: &Room,
     options: &TraceOptions,
 ) -> Result<(TraceResult, Vec<(DVec3, DVec3)>), TraceError> {
-    run_logged::<Vec<(DVec3, DVec3)>>(room, options, &options.law, &|_| {})
+    first_batch(run_logged::<Vec<(DVec3, DVec3)>>(
+        room,
+        options,
+        &options.law,
+        1,
+        &|_| {},
+    ))
 }
 
-/// The whole run, with a query log per chunk concatenated in chunk order.
+/// The whole run in `batches` batches (see [`run_batches`]), each with a
+/// query log per chunk concatenated in chunk order.
 fn run_logged<L: QueryLog + Default + Send>(
     room: &Room,
     options: &TraceOptions,
     law_set: &dyn LawSet,
+    batches: u64,
     progress: &(dyn Fn(usize) + Sync),
-) -> Result<(TraceResult, L), TraceError> {
-    let mut log = L::default();
+) -> Result<Vec<(TraceResult, L)>, TraceError> {
     let started = Instant::now();
     options.validate()?;
     if room.sources.is_empty() {
@@ -181,7 +217,18 @@ fn run_logged<L: QueryLog + Default + Send>(
     // One pass per band group (see `LawKind::band_groups`); ray i uses the
     // same stream in every pass (common random numbers across bands).
     let total_rays = options.rays as u64 * sources.len() as u64;
-    let mut tally = Tally::default();
+    let last = total_rays
+        .checked_mul(batches)
+        .and_then(|n| options.first_ray.checked_add(n));
+    if last.is_none() {
+        return Err(TraceError::Option(format!(
+            "first ray {} plus {batches} batches of {total_rays} rays runs past the last stream index",
+            options.first_ray
+        )));
+    }
+    let mut traced: Vec<(Vec<PairEchogram>, Tally, L)> = (0..batches)
+        .map(|_| (pairs.clone(), Tally::default(), L::default()))
+        .collect();
     let mut fallbacks = Vec::new();
     for group in &groups {
         let laws = law_set.laws_for_room(room, group, options.fallback)?;
@@ -194,21 +241,64 @@ fn run_logged<L: QueryLog + Default + Send>(
                 }
             }
         }
-        let scene = build_scene(
+        let mut scene = build_scene(
             room, options, &bvh, laws, group, &sources, &receivers, &pairs, speed_m_s, air_per_m,
         );
-        trace_pass(
-            &scene,
-            &mut pairs,
-            &mut tally,
-            &mut log,
-            total_rays,
-            bins,
-            options.bin_s,
-            progress,
-        );
+        for (b, (batch_pairs, tally, log)) in traced.iter_mut().enumerate() {
+            scene.first_ray = options.first_ray + b as u64 * total_rays;
+            trace_pass(
+                &scene,
+                batch_pairs,
+                tally,
+                log,
+                total_rays,
+                bins,
+                options.bin_s,
+                progress,
+            );
+        }
     }
+    let wall_time_s = started.elapsed().as_secs_f64();
+    Ok(traced
+        .into_iter()
+        .map(|(pairs, tally, log)| {
+            let result = finish(
+                room,
+                options,
+                &groups,
+                total_rays,
+                tally,
+                pairs,
+                &sources,
+                &receivers,
+                warnings.clone(),
+                &fallbacks,
+                speed_m_s,
+                air_per_m,
+                wall_time_s,
+            );
+            (result, log)
+        })
+        .collect())
+}
 
+/// Statistics, the lost-ray warning and the result of one batch.
+#[allow(clippy::too_many_arguments)]
+fn finish(
+    room: &Room,
+    options: &TraceOptions,
+    groups: &[Vec<usize>],
+    total_rays: u64,
+    tally: Tally,
+    pairs: Vec<PairEchogram>,
+    sources: &[SourceInfo],
+    receivers: &[ReceiverInfo],
+    mut warnings: Vec<String>,
+    fallbacks: &[String],
+    speed_m_s: f64,
+    air_per_m: Bands,
+    wall_time_s: f64,
+) -> TraceResult {
     let stats = TraceStats {
         rays: total_rays,
         passes: groups.len(),
@@ -221,7 +311,7 @@ fn run_logged<L: QueryLog + Default + Send>(
         absorbed_rays: tally.absorbed_rays,
         lost_energy_j: tally.lost_energy_j,
         energy_at_end_j: tally.energy_at_end_j,
-        wall_time_s: started.elapsed().as_secs_f64(),
+        wall_time_s,
     };
     if stats.lost_fraction() > LOST_WARNING_FRACTION {
         let what = if room.settings.open {
@@ -237,22 +327,19 @@ fn run_logged<L: QueryLog + Default + Send>(
         ));
     }
 
-    Ok((
-        TraceResult {
-            bands: room.settings.bands.clone(),
-            bin_s: options.bin_s,
-            duration_s: options.duration_s,
-            speed_of_sound_m_s: speed_m_s,
-            air_attenuation_per_m: air_per_m,
-            sources,
-            receivers,
-            echograms: pairs,
-            stats,
-            warnings,
-            fallbacks,
-        },
-        log,
-    ))
+    TraceResult {
+        bands: room.settings.bands.clone(),
+        bin_s: options.bin_s,
+        duration_s: options.duration_s,
+        speed_of_sound_m_s: speed_m_s,
+        air_attenuation_per_m: air_per_m,
+        sources: sources.to_vec(),
+        receivers: receivers.to_vec(),
+        echograms: pairs,
+        stats,
+        warnings,
+        fallbacks: fallbacks.to_vec(),
+    }
 }
 
 /// Label of the surface nearest to `point` and its distance, m (`None` without triangles).
@@ -352,6 +439,7 @@ fn build_scene<'a>(
         laws: laws.laws,
         bands,
         seed: options.seed,
+        first_ray: options.first_ray,
         rays_per_source: options.rays,
         start_weight,
         max_path_m: speed_m_s * options.duration_s,

@@ -1,0 +1,250 @@
+//! Tracing the runs of a comparison in batches, and the parameters of the
+//! pooled echograms and of every delete-one pool.
+//!
+//! Batch b of every run traces the rays with stream indices
+//! [b·n·S, (b+1)·n·S) (n rays per source per batch, S sources; see
+//! [`TraceOptions::first_ray`](crate::trace::TraceOptions::first_ray)), so the
+//! runs share their random numbers batch by batch. The pooled echogram is the
+//! mean of the batch echograms, summed in batch order; each delete-one pool is
+//! the mean of the other batches, summed in batch order from scratch (no
+//! subtraction, so no cancellation).
+
+use std::time::Instant;
+
+use serde::Serialize;
+
+use super::error::CompareError;
+use super::parameter::Parameter;
+use super::plan::{ComparisonPlan, RunSpec};
+use crate::metrics::BandParameters;
+use crate::receiver::Echogram;
+use crate::report::{pair_parameters, PairParameters};
+use crate::trace::{self, PairEchogram, TraceResult};
+
+/// Values of every parameter of one pair: index `parameter · (bands + 1) + slot`,
+/// slot `0..bands` a band, slot `bands` the single-number value.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ValueTable {
+    /// Bands.
+    pub bands: usize,
+    /// The values, `None` where undefined.
+    pub values: Vec<Option<f64>>,
+}
+
+impl ValueTable {
+    /// The table of one pair's parameters.
+    #[must_use]
+    pub fn of(parameters: &PairParameters) -> Self {
+        let bands = parameters.bands.len();
+        let mut values = Vec::with_capacity(Parameter::ALL.len() * (bands + 1));
+        for p in Parameter::ALL {
+            values.extend(parameters.bands.iter().map(|b| finite(p.of_band(b))));
+            values.push(finite(p.of_averages(&parameters.averages)));
+        }
+        Self { bands, values }
+    }
+
+    /// Index of `parameter` in `slot` (a band index, or `bands` for the single number).
+    #[must_use]
+    pub fn index(&self, parameter: Parameter, slot: usize) -> usize {
+        let p = Parameter::ALL
+            .iter()
+            .position(|&q| q == parameter)
+            .unwrap_or(0);
+        p * (self.bands + 1) + slot
+    }
+
+    /// The value of `parameter` in `slot`.
+    #[must_use]
+    pub fn get(&self, parameter: Parameter, slot: usize) -> Option<f64> {
+        self.values
+            .get(self.index(parameter, slot))
+            .copied()
+            .flatten()
+    }
+}
+
+fn finite(v: Option<f64>) -> Option<f64> {
+    v.filter(|x| x.is_finite())
+}
+
+/// One source–receiver pair of a run.
+#[derive(Clone, Debug)]
+pub struct PairOutcome {
+    /// Source name.
+    pub source: String,
+    /// Receiver name.
+    pub receiver: String,
+    /// Parameters of the pooled echogram (with decay curves, for charts).
+    pub pooled: PairParameters,
+    /// The pooled echogram (mean of the batches), J/m² per bin.
+    pub echogram: Echogram,
+    /// Direct-sound delay, s.
+    pub direct_time_s: f64,
+    /// Values of the pooled echogram.
+    pub values: ValueTable,
+    /// Values of each delete-one pool, in batch order.
+    pub delete_one: Vec<ValueTable>,
+}
+
+impl PairOutcome {
+    /// The delete-one values of one entry, in batch order.
+    #[must_use]
+    pub fn delete_one_of(&self, parameter: Parameter, slot: usize) -> Vec<Option<f64>> {
+        self.delete_one
+            .iter()
+            .map(|t| t.get(parameter, slot))
+            .collect()
+    }
+
+    /// Reason a pooled value is undefined, if it is.
+    #[must_use]
+    pub fn undefined_reason(&self, parameter: Parameter, slot: usize) -> Option<String> {
+        let bands: &[BandParameters] = &self.pooled.bands;
+        match bands.get(slot) {
+            Some(b) => b.undefined.get(parameter.key()).cloned(),
+            None => self.pooled.averages.undefined.get(parameter.key()).cloned(),
+        }
+        .or_else(|| {
+            self.values
+                .get(parameter, slot)
+                .is_none()
+                .then(|| "not a finite number".to_string())
+        })
+    }
+}
+
+/// Counters of a run over all its batches.
+#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+pub struct RunStats {
+    /// Rays per band pass over all sources and batches.
+    pub rays: u64,
+    /// Band passes per batch.
+    pub passes: usize,
+    /// Segments traced.
+    pub segments: u64,
+    /// Wall reflections.
+    pub reflections: u64,
+    /// Rays that left the model.
+    pub lost_rays: u64,
+    /// Rays stopped by roulette.
+    pub roulette_stopped_rays: u64,
+    /// Rays the law absorbed outright.
+    pub absorbed_rays: u64,
+}
+
+/// Everything one run produced.
+#[derive(Clone, Debug)]
+pub struct RunOutcome {
+    /// The run.
+    pub spec: RunSpec,
+    /// Pairs, source-major.
+    pub pairs: Vec<PairOutcome>,
+    /// Counters.
+    pub stats: RunStats,
+    /// Warnings of the tracer (each once).
+    pub warnings: Vec<String>,
+    /// Materials traced with the fallback law.
+    pub fallbacks: Vec<String>,
+    /// Wall-clock time, s (the only value that changes between identical runs).
+    pub wall_time_s: f64,
+}
+
+/// Traces every batch of `run` and computes its pooled and delete-one parameters.
+/// `progress(rays)` is called as rays finish (from worker threads).
+pub fn trace_run(
+    plan: &ComparisonPlan,
+    run: &RunSpec,
+    progress: &(dyn Fn(usize) + Sync),
+) -> Result<RunOutcome, CompareError> {
+    let started = Instant::now();
+    let room = plan.room_of(run);
+    let options = plan.batch_options(run, 0);
+    let batches = trace::run_batches(room, &options, plan.batches, progress).map_err(|source| {
+        CompareError::Trace {
+            file: plan.file.clone(),
+            run: run.id.clone(),
+            source,
+        }
+    })?;
+    let Some(first) = batches.first() else {
+        return Err(CompareError::Trace {
+            file: plan.file.clone(),
+            run: run.id.clone(),
+            source: crate::trace::TraceError::Option("no batch was traced".into()),
+        });
+    };
+    let mut stats = RunStats {
+        passes: first.stats.passes,
+        ..RunStats::default()
+    };
+    let mut warnings: Vec<String> = Vec::new();
+    for r in &batches {
+        stats.rays += r.stats.rays;
+        stats.segments += r.stats.segments;
+        stats.reflections += r.stats.reflections;
+        stats.lost_rays += r.stats.lost_rays;
+        stats.roulette_stopped_rays += r.stats.roulette_stopped_rays;
+        stats.absorbed_rays += r.stats.absorbed_rays;
+        for w in &r.warnings {
+            if !warnings.contains(w) {
+                warnings.push(w.clone());
+            }
+        }
+    }
+
+    let pairs = first
+        .echograms
+        .iter()
+        .enumerate()
+        .map(|(k, pair)| {
+            let all: Vec<&Echogram> = batches.iter().map(|r| &r.echograms[k].echogram).collect();
+            let pooled_echogram = mean_of(&all, None);
+            let pooled = parameters_of(first, pair, &pooled_echogram);
+            let delete_one = (0..all.len())
+                .map(|skip| ValueTable::of(&parameters_of(first, pair, &mean_of(&all, Some(skip)))))
+                .collect();
+            PairOutcome {
+                source: first.sources[pair.source].name.clone(),
+                receiver: first.receivers[pair.receiver].name.clone(),
+                values: ValueTable::of(&pooled),
+                pooled,
+                echogram: pooled_echogram,
+                direct_time_s: pair.direct_time_s,
+                delete_one,
+            }
+        })
+        .collect();
+    Ok(RunOutcome {
+        spec: run.clone(),
+        pairs,
+        stats,
+        warnings,
+        fallbacks: first.fallbacks.clone(),
+        wall_time_s: started.elapsed().as_secs_f64(),
+    })
+}
+
+/// Mean of the echograms, leaving out `skip`, summed in order.
+fn mean_of(all: &[&Echogram], skip: Option<usize>) -> Echogram {
+    let mut sum = Echogram::new(all[0].bins(), all[0].bin_s);
+    let mut count = 0usize;
+    for (b, e) in all.iter().enumerate() {
+        if Some(b) != skip {
+            sum.merge(e);
+            count += 1;
+        }
+    }
+    let scale = 1.0 / count.max(1) as f64;
+    for v in sum.energy.iter_mut().chain(sum.lateral.iter_mut()) {
+        *v = *v * scale;
+    }
+    sum
+}
+
+/// ISO 3382-1 parameters of `pair` with its echogram replaced by `echogram`.
+fn parameters_of(result: &TraceResult, pair: &PairEchogram, echogram: &Echogram) -> PairParameters {
+    let mut p = pair.clone();
+    p.echogram = echogram.clone();
+    pair_parameters(result, &p)
+}

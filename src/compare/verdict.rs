@@ -1,0 +1,324 @@
+//! Standard errors from batches, differences in JNDs, and the verdict rule.
+//!
+//! # Standard errors
+//! A run is traced in B batches of rays with disjoint random streams; the
+//! parameters are computed on the pooled echogram (the mean of the batch
+//! echograms) and on each delete-one pool (the mean of the other B − 1
+//! batches). The delete-one jackknife then gives the standard error of the
+//! pooled value: se² = (B − 1)/B · Σ_b (θ_(b) − θ̄)², θ̄ the mean of the θ_(b)
+//! (Efron & Tibshirani, An Introduction to the Bootstrap, 1993, ch. 11; from
+//! memory). Batch b traces the same rays in every run of a comparison (common
+//! random numbers), so the standard error of a difference comes from the
+//! differences of the paired delete-one values, which keeps the correlation
+//! between runs that tracing the same rays creates.
+//!
+//! # Verdicts
+//! For a difference Δ between two runs with standard error σ, one JND J (for
+//! the relative JNDs of EDT, T20 and T30, 5 % of the mean of the two values)
+//! and the noise factor k:
+//! - spread S = |Δ| / J and noise N = k σ / J, both in JNDs;
+//! - **sensitive to the treatment** when S > 1 and S > N: the difference is
+//!   real (beyond k standard errors) and at least one JND;
+//! - **robust** when S + N ≤ 1: even at the top of its noise band the
+//!   difference stays within one JND;
+//! - **within noise** otherwise: the noise band straddles one JND, so the
+//!   Monte Carlo noise hides whether the difference can be heard (trace more
+//!   rays or batches);
+//! - **not available** when a value or its standard error is undefined.
+//!
+//! With more than two runs, the verdict is that of the deciding pair: any
+//! sensitive pair decides (the one with the largest S); otherwise, when every
+//! pair is robust, the robust verdict, shown with the pair of largest S + N;
+//! otherwise within noise, shown with the non-robust pair of largest S + N.
+
+use serde::Serialize;
+
+use crate::metrics::Jnd;
+
+/// Default noise factor k: a difference counts as real beyond k standard
+/// errors (2 ≈ a 95 % two-sided normal interval; common practice, no source).
+pub const DEFAULT_NOISE_FACTOR: f64 = 2.0;
+
+/// The verdict on a difference (or on the spread of several runs).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Verdict {
+    /// Within one JND even at the top of the noise band.
+    Robust,
+    /// The noise band straddles one JND.
+    WithinNoise,
+    /// Real and at least one JND.
+    Sensitive,
+    /// A value or standard error is undefined.
+    Undefined,
+}
+
+impl Verdict {
+    /// Every verdict, in table order.
+    pub const ALL: [Verdict; 4] = [
+        Self::Robust,
+        Self::WithinNoise,
+        Self::Sensitive,
+        Self::Undefined,
+    ];
+
+    /// Words shown in reports.
+    #[must_use]
+    pub fn label(self) -> &'static str {
+        match self {
+            Self::Robust => "robust",
+            Self::WithinNoise => "within noise",
+            Self::Sensitive => "sensitive to the treatment",
+            Self::Undefined => "not available",
+        }
+    }
+
+    /// The key used in JSON and CSV.
+    #[must_use]
+    pub fn key(self) -> &'static str {
+        match self {
+            Self::Robust => "robust",
+            Self::WithinNoise => "within_noise",
+            Self::Sensitive => "sensitive",
+            Self::Undefined => "undefined",
+        }
+    }
+
+    /// The rule, one sentence per verdict, for reports (`k` the noise factor).
+    #[must_use]
+    pub fn rule_text(self, k: f64) -> String {
+        match self {
+            Self::Robust => format!(
+                "S + N ≤ 1: the difference plus {k} standard errors stays within one JND, so the conclusion holds whichever treatment is right"
+            ),
+            Self::WithinNoise => format!(
+                "otherwise: the band S ± N straddles one JND, so the Monte Carlo noise ({k} standard errors) hides whether the difference can be heard; trace more rays or batches"
+            ),
+            Self::Sensitive => format!(
+                "S > 1 and S > N: the difference exceeds both one JND and {k} standard errors, so it is real and large enough to hear"
+            ),
+            Self::Undefined => {
+                "a value or its standard error is undefined (see the reason given)".to_string()
+            }
+        }
+    }
+}
+
+/// The verdict for spread `s` and noise `n`, both in JNDs (see the module docs).
+#[must_use]
+pub fn judge(s: f64, n: f64) -> Verdict {
+    if !(s.is_finite() && n.is_finite()) {
+        Verdict::Undefined
+    } else if s > 1.0 && s > n {
+        Verdict::Sensitive
+    } else if s + n <= 1.0 {
+        Verdict::Robust
+    } else {
+        Verdict::WithinNoise
+    }
+}
+
+/// Delete-one jackknife standard error from the delete-one values θ_(b):
+/// se² = (B − 1)/B · Σ (θ_(b) − θ̄)². `None` with fewer than two values or
+/// when any is undefined.
+#[must_use]
+pub fn jackknife_se(delete_one: &[Option<f64>]) -> Option<f64> {
+    let b = delete_one.len();
+    if b < 2 {
+        return None;
+    }
+    let values: Option<Vec<f64>> = delete_one.iter().copied().collect();
+    let values = values?;
+    if values.iter().any(|v| !v.is_finite()) {
+        return None;
+    }
+    let mean = values.iter().sum::<f64>() / b as f64;
+    let sum_sq: f64 = values.iter().map(|v| (v - mean) * (v - mean)).sum();
+    Some(((b as f64 - 1.0) / b as f64 * sum_sq).sqrt())
+}
+
+/// One difference between two runs, in the parameter's unit and in JNDs.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Difference {
+    /// Run subtracted (id).
+    pub from: String,
+    /// Run compared (id): the difference is `to` − `from`.
+    pub to: String,
+    /// `to` − `from`, in the parameter's unit; `null` where either is undefined.
+    pub difference: Option<f64>,
+    /// Its standard error (paired delete-one jackknife), same unit.
+    pub se: Option<f64>,
+    /// One JND in the parameter's unit (relative JNDs taken at the mean of the two values).
+    pub jnd: Option<f64>,
+    /// S = |difference| / JND.
+    pub spread_jnd: Option<f64>,
+    /// N = k · se / JND.
+    pub noise_jnd: Option<f64>,
+    /// The verdict from S and N.
+    pub verdict: Verdict,
+}
+
+/// The difference `to − from` of one parameter between two runs, from their
+/// pooled values and delete-one values (same batches, same order).
+#[must_use]
+#[allow(clippy::too_many_arguments)]
+pub fn difference(
+    from: &str,
+    to: &str,
+    value_from: Option<f64>,
+    value_to: Option<f64>,
+    delete_one_from: &[Option<f64>],
+    delete_one_to: &[Option<f64>],
+    jnd: Option<&Jnd>,
+    noise_factor: f64,
+) -> Difference {
+    let diff = match (value_from, value_to) {
+        (Some(a), Some(b)) if a.is_finite() && b.is_finite() => Some((a, b, b - a)),
+        _ => None,
+    };
+    let paired: Vec<Option<f64>> = delete_one_from
+        .iter()
+        .zip(delete_one_to)
+        .map(|(a, b)| Some(b.as_ref()? - a.as_ref()?))
+        .collect();
+    let se = if diff.is_some() {
+        jackknife_se(&paired)
+    } else {
+        None
+    };
+    // One JND in the parameter's unit: Jnd::in_jnds gives the JNDs of 1 unit.
+    let jnd_unit = match (diff, jnd) {
+        (Some((a, b, _)), Some(j)) => {
+            let reference = 0.5 * (a + b);
+            let per_unit = j.in_jnds(reference, reference + 1.0);
+            (per_unit.is_finite() && per_unit > 0.0).then(|| 1.0 / per_unit)
+        }
+        _ => None,
+    };
+    let spread_jnd = match (diff, jnd_unit) {
+        (Some((_, _, d)), Some(u)) => Some(d.abs() / u),
+        _ => None,
+    };
+    let noise_jnd = match (se, jnd_unit) {
+        (Some(s), Some(u)) => Some(noise_factor * s / u),
+        _ => None,
+    };
+    let verdict = match (spread_jnd, noise_jnd) {
+        (Some(s), Some(n)) => judge(s, n),
+        _ => Verdict::Undefined,
+    };
+    Difference {
+        from: from.to_string(),
+        to: to.to_string(),
+        difference: diff.map(|d| d.2),
+        se,
+        jnd: jnd_unit,
+        spread_jnd,
+        noise_jnd,
+        verdict,
+    }
+}
+
+/// The verdict over several pairwise differences and the index of the pair
+/// that decides it (see the module docs); `None` without differences.
+#[must_use]
+pub fn deciding(differences: &[Difference]) -> Option<(Verdict, usize)> {
+    if differences.is_empty() {
+        return None;
+    }
+    let s = |d: &Difference| d.spread_jnd.unwrap_or(0.0);
+    let sn = |d: &Difference| d.spread_jnd.unwrap_or(0.0) + d.noise_jnd.unwrap_or(0.0);
+    let largest = |pick: &dyn Fn(&Difference) -> bool, by: &dyn Fn(&Difference) -> f64| {
+        differences
+            .iter()
+            .enumerate()
+            .filter(|(_, d)| pick(d))
+            .max_by(|a, b| by(a.1).total_cmp(&by(b.1)))
+            .map(|(i, _)| i)
+    };
+    if let Some(i) = largest(&|d| d.verdict == Verdict::Sensitive, &s) {
+        return Some((Verdict::Sensitive, i));
+    }
+    if let Some(i) = largest(&|d| d.verdict == Verdict::Undefined, &sn) {
+        return Some((Verdict::Undefined, i));
+    }
+    if let Some(i) = largest(&|d| d.verdict == Verdict::WithinNoise, &sn) {
+        return Some((Verdict::WithinNoise, i));
+    }
+    largest(&|_| true, &sn).map(|i| (Verdict::Robust, i))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::metrics::jnd_of;
+
+    #[test]
+    fn jackknife_of_the_mean_is_the_standard_error_of_the_mean() {
+        // Derived here: for the mean, θ_(b) − θ̄ = (x̄ − x_b)/(B − 1), so the
+        // jackknife gives Σ(x_b − x̄)²/(B(B − 1)) = s²/B exactly.
+        let x = [1.0, 4.0, 2.5, 7.0, 3.0];
+        let b = x.len() as f64;
+        let total: f64 = x.iter().sum();
+        let delete_one: Vec<Option<f64>> =
+            x.iter().map(|v| Some((total - v) / (b - 1.0))).collect();
+        let mean = total / b;
+        let s2 = x.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / (b - 1.0);
+        let se = jackknife_se(&delete_one).unwrap();
+        assert!((se - (s2 / b).sqrt()).abs() < 1e-12, "{se}");
+        assert_eq!(jackknife_se(&[Some(1.0)]), None);
+        assert_eq!(jackknife_se(&[Some(1.0), None]), None);
+    }
+
+    #[test]
+    fn verdict_rule_partitions_the_plane() {
+        assert_eq!(judge(1.5, 0.5), Verdict::Sensitive);
+        assert_eq!(judge(0.4, 0.5), Verdict::Robust);
+        assert_eq!(judge(0.6, 0.5), Verdict::WithinNoise);
+        assert_eq!(judge(1.5, 2.0), Verdict::WithinNoise);
+        assert_eq!(judge(1.0, 0.0), Verdict::Robust);
+        assert_eq!(judge(f64::NAN, 0.1), Verdict::Undefined);
+    }
+
+    #[test]
+    fn relative_jnds_use_the_mean_of_the_two_values() {
+        // ISO 3382-1:2009 Table A.1: EDT JND 5 % (relative).
+        let edt = jnd_of("EDT_s").unwrap();
+        let batches = [Some(1.0), Some(1.0)];
+        let later = [Some(1.1), Some(1.1)];
+        let d = difference(
+            "a",
+            "b",
+            Some(1.9),
+            Some(2.1),
+            &batches,
+            &later,
+            Some(edt),
+            2.0,
+        );
+        // 0.2 s over 5 % of 2.0 s = 2 JNDs; the paired delete-one values agree, so se = 0.
+        assert!((d.spread_jnd.unwrap() - 2.0).abs() < 1e-12);
+        assert_eq!(d.se, Some(0.0));
+        assert_eq!(d.verdict, Verdict::Sensitive);
+    }
+
+    #[test]
+    fn deciding_pair_prefers_sensitive_then_noise() {
+        let mk = |s: f64, n: f64| Difference {
+            from: "a".into(),
+            to: "b".into(),
+            difference: Some(s),
+            se: Some(n),
+            jnd: Some(1.0),
+            spread_jnd: Some(s),
+            noise_jnd: Some(n),
+            verdict: judge(s, n),
+        };
+        let ds = [mk(0.2, 0.1), mk(0.9, 0.5), mk(1.4, 0.3)];
+        assert_eq!(deciding(&ds), Some((Verdict::Sensitive, 2)));
+        let ds = [mk(0.2, 0.1), mk(0.9, 0.5)];
+        assert_eq!(deciding(&ds), Some((Verdict::WithinNoise, 1)));
+        let ds = [mk(0.2, 0.1), mk(0.5, 0.3)];
+        assert_eq!(deciding(&ds), Some((Verdict::Robust, 1)));
+    }
+}
