@@ -2,6 +2,7 @@
 
 use std::path::PathBuf;
 
+use crate::report::ReportError;
 use crate::room::RoomError;
 use crate::trace::TraceError;
 
@@ -29,30 +30,9 @@ pub enum CompareError {
         /// The cause.
         source: TraceError,
     },
-    /// Writing an output failed.
-    #[error("cannot write {}: {source}; check that the folder is writable and the disk not full", .path.display())]
-    Io {
-        /// The file.
-        path: PathBuf,
-        /// The cause.
-        source: std::io::Error,
-    },
-    /// Drawing a chart failed.
-    #[error("cannot draw {}: {message}", .path.display())]
-    Plot {
-        /// The chart.
-        path: PathBuf,
-        /// What the plotting library said.
-        message: String,
-    },
-    /// Serializing failed (a bug: every value is serializable).
-    #[error("cannot serialize {}: {source}", .path.display())]
-    Json {
-        /// The file.
-        path: PathBuf,
-        /// The cause.
-        source: serde_json::Error,
-    },
+    /// Writing an output (file, chart, JSON) failed.
+    #[error(transparent)]
+    Output(#[from] ReportError),
     /// A reproduction could not start or did not match.
     #[error("{}: {message}", .file.display())]
     Reproduce {

@@ -23,6 +23,7 @@ pub mod provenance;
 pub mod reproduce;
 pub mod verdict;
 
+use crate::report::ReportError;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
@@ -82,7 +83,7 @@ pub fn run_comparison(
 /// (each atomically); returns their paths.
 pub fn write_tables(dir: &Path, doc: &ComparisonDocument) -> Result<Vec<PathBuf>, CompareError> {
     let json_path = dir.join(JSON_FILE);
-    let mut text = serde_json::to_string_pretty(doc).map_err(|source| CompareError::Json {
+    let mut text = serde_json::to_string_pretty(doc).map_err(|source| ReportError::Json {
         path: json_path.clone(),
         source,
     })?;
@@ -94,7 +95,7 @@ pub fn write_tables(dir: &Path, doc: &ComparisonDocument) -> Result<Vec<PathBuf>
     ];
     let mut written = Vec::new();
     for (path, text) in files {
-        crate::output::write_atomic(&path, text.as_bytes()).map_err(|source| CompareError::Io {
+        crate::output::write_atomic(&path, text.as_bytes()).map_err(|source| ReportError::Io {
             path: path.clone(),
             source,
         })?;

@@ -1,6 +1,7 @@
 //! Input files and their SHA-256 hashes, so a reviewer can check that a
 //! re-run reads exactly the files the comparison read.
 
+use crate::report::ReportError;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
@@ -45,7 +46,7 @@ pub fn record_inputs(inputs: &[InputFile]) -> Result<Vec<FileRecord>, CompareErr
     inputs
         .iter()
         .map(|f| {
-            let io = |source| CompareError::Io {
+            let io = |source| ReportError::Io {
                 path: f.path.clone(),
                 source,
             };

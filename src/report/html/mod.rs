@@ -15,6 +15,7 @@
 pub mod charts;
 mod page;
 
+use crate::report::ReportError;
 use std::path::{Path, PathBuf};
 
 use plotters::style::RGBColor;
@@ -117,19 +118,19 @@ pub fn write_report(
     let charts = build_charts(doc, outcomes);
     let mut svgs = Vec::with_capacity(charts.len());
     let plots = dir.join(PLOTS_DIR);
-    std::fs::create_dir_all(&plots).map_err(|source| CompareError::Io {
+    std::fs::create_dir_all(&plots).map_err(|source| ReportError::Io {
         path: plots.clone(),
         source,
     })?;
     let mut written = Vec::new();
     for c in &charts {
         let path = plots.join(format!("{}.png", c.name));
-        let svg = c.to_svg().map_err(|message| CompareError::Plot {
+        let svg = c.to_svg().map_err(|message| ReportError::Plot {
             path: path.clone(),
             message,
         })?;
         svgs.push(svg);
-        c.write_png(&path).map_err(|message| CompareError::Plot {
+        c.write_png(&path).map_err(|message| ReportError::Plot {
             path: path.clone(),
             message,
         })?;
@@ -137,7 +138,7 @@ pub fn write_report(
     }
     let html = page::render(doc, &charts, &svgs);
     let path = dir.join(REPORT_FILE);
-    crate::output::write_atomic(&path, html.as_bytes()).map_err(|source| CompareError::Io {
+    crate::output::write_atomic(&path, html.as_bytes()).map_err(|source| ReportError::Io {
         path: path.clone(),
         source,
     })?;
