@@ -131,6 +131,10 @@ pub struct RunStats {
     pub roulette_stopped_rays: u64,
     /// Rays the law absorbed outright.
     pub absorbed_rays: u64,
+    /// Traced mean free path ÷ 4V/S, the mean over batches. A law that is
+    /// reciprocal and lossless keeps it near 1 in a diffuse hall (Kuttruff;
+    /// `law::bounded`); a departure shifts reverberation times by itself.
+    pub free_path_ratio: Option<f64>,
 }
 
 /// Everything one run produced.
@@ -179,6 +183,14 @@ pub fn trace_run(
         ..RunStats::default()
     };
     let mut warnings: Vec<String> = Vec::new();
+    let four_v_over_s = crate::room::estimates::mean_free_path_m(room);
+    let ratios: Vec<f64> = batches
+        .iter()
+        .filter_map(|r| r.stats.traced_mean_free_path_m)
+        .map(|m| m / four_v_over_s)
+        .collect();
+    stats.free_path_ratio = (!ratios.is_empty() && four_v_over_s > 0.0)
+        .then(|| ratios.iter().sum::<f64>() / ratios.len() as f64);
     for r in &batches {
         stats.rays += r.stats.rays;
         stats.segments += r.stats.segments;

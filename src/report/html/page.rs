@@ -686,7 +686,7 @@ fn provenance(h: &mut String, doc: &ComparisonDocument) {
     for (k, v) in rows {
         let _ = write!(h, "<tr><th>{}</th><td>{}</td></tr>", esc(k), esc(&v));
     }
-    h.push_str("</table><h3>Runs</h3><table><tr><th>run</th><th>law</th><th>role</th><th>segments</th><th>reflections</th><th>lost rays</th></tr>");
+    h.push_str("</table><h3>Runs</h3><table><tr><th>run</th><th>law</th><th>role</th><th>segments</th><th>reflections</th><th>lost rays</th><th title=\"traced mean free path ÷ 4V/S; near 1 for a reciprocal law in a diffuse hall\">free path ÷ 4V/S</th></tr>");
     for r in &doc.runs {
         let role = match r.role {
             crate::compare::RunRole::Treatment => "treatment",
@@ -695,13 +695,16 @@ fn provenance(h: &mut String, doc: &ComparisonDocument) {
         };
         let _ = write!(
             h,
-            "<tr><td>{}</td><td>{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            "<tr><td>{}</td><td>{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
             esc(&r.id),
             esc(&r.law),
             role,
             r.stats.segments,
             r.stats.reflections,
-            r.stats.lost_rays
+            r.stats.lost_rays,
+            r.stats
+                .free_path_ratio
+                .map_or_else(|| "–".to_string(), |x| format!("{x:.3}"))
         );
     }
     h.push_str("</table>");
