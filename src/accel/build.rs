@@ -10,7 +10,7 @@
 use glam::DVec3;
 
 use super::node::{ChildRef, Node4, WideBox};
-use super::triangle::LeafTriangle;
+use super::triangle::TrianglePair;
 use crate::room::Triangle;
 
 /// Number of SAH bins per axis.
@@ -78,10 +78,10 @@ enum BinaryKind {
 }
 
 /// Everything the build makes: the wide nodes (root at 0; empty when there
-/// are no triangles) and the triangles in leaf order.
+/// are no triangles) and the leaves' triangle pairs.
 pub(crate) struct Built {
     pub(crate) nodes: Vec<Node4>,
-    pub(crate) triangles: Vec<LeafTriangle>,
+    pub(crate) pairs: Vec<TrianglePair>,
 }
 
 /// Builds the tree over `triangles`.
@@ -98,7 +98,7 @@ pub(crate) fn build(triangles: &[Triangle]) -> Built {
     if triangles.is_empty() {
         return Built {
             nodes: Vec::new(),
-            triangles: Vec::new(),
+            pairs: Vec::new(),
         };
     }
     let prims: Vec<Prim> = triangles.iter().map(Prim::new).collect();
@@ -110,23 +110,17 @@ pub(crate) fn build(triangles: &[Triangle]) -> Built {
     };
     let root = builder.build(&mut order, 0, 0);
 
-    let leaf_triangles = order
-        .iter()
-        .map(|&i| {
-            let t = &triangles[i as usize];
-            LeafTriangle {
-                vertices: t.vertices.map(|v| v.to_array()),
-                index: i,
-                surface: t.surface,
-            }
-        })
-        .collect();
-
-    let mut nodes = Vec::with_capacity(binary.len() / 2 + 1);
-    collapse(&binary, root, &mut nodes);
+    let mut collapser = Collapser {
+        binary: &binary,
+        order: &order,
+        triangles,
+        nodes: Vec::with_capacity(binary.len() / 2 + 1),
+        pairs: Vec::with_capacity(triangles.len() / 2 + 1),
+    };
+    collapser.collapse(root);
     Built {
-        nodes,
-        triangles: leaf_triangles,
+        nodes: collapser.nodes,
+        pairs: collapser.pairs,
     }
 }
 
@@ -324,51 +318,71 @@ fn partition(order: &mut [u32], left: impl Fn(u32) -> bool) -> usize {
     i
 }
 
-/// Writes the wide node for binary node `b` and its subtree depth-first;
-/// returns its index in `out`.
-fn collapse(binary: &[BinaryNode], b: usize, out: &mut Vec<Node4>) -> u32 {
-    let index = out.len();
-    out.push(Node4::EMPTY);
+/// Turns the binary tree into the wide one.
+struct Collapser<'a> {
+    binary: &'a [BinaryNode],
+    /// Triangle indices in leaf order.
+    order: &'a [u32],
+    triangles: &'a [Triangle],
+    nodes: Vec<Node4>,
+    pairs: Vec<TrianglePair>,
+}
 
-    // Open the inner child of largest area until there are four children.
-    let mut children: Vec<usize> = match binary[b].kind {
-        BinaryKind::Inner { left, right } => vec![left, right],
-        BinaryKind::Leaf { .. } => vec![b],
-    };
-    while children.len() < 4 {
-        let candidate = children
-            .iter()
-            .enumerate()
-            .filter(|(_, &c)| matches!(binary[c].kind, BinaryKind::Inner { .. }))
-            .max_by(|(_, &x), (_, &y)| {
-                binary[x]
-                    .bounds
-                    .half_area()
-                    .total_cmp(&binary[y].bounds.half_area())
-            })
-            .map(|(slot, _)| slot);
-        let Some(slot) = candidate else { break };
-        let BinaryKind::Inner { left, right } = binary[children[slot]].kind else {
-            unreachable!("filtered to inner nodes")
-        };
-        children[slot] = left;
-        children.insert(slot + 1, right);
-    }
+impl Collapser<'_> {
+    /// Writes the wide node for binary node `b` and its subtree depth-first;
+    /// returns its index in `nodes`.
+    fn collapse(&mut self, b: usize) -> u32 {
+        let binary = self.binary;
+        let index = self.nodes.len();
+        self.nodes.push(Node4::EMPTY);
 
-    let mut node = Node4::EMPTY;
-    for (slot, &c) in children.iter().enumerate() {
-        let bounds = binary[c].bounds;
-        node.set_box(slot, &WideBox::outward(bounds.min, bounds.max));
-        node.children[slot] = match binary[c].kind {
-            BinaryKind::Leaf { start, count } => ChildRef::leaf(start as u32, count as u32),
-            BinaryKind::Inner { .. } => ChildRef::EMPTY, // filled below
+        // Open the inner child of largest area until there are four children.
+        let mut children: Vec<usize> = match binary[b].kind {
+            BinaryKind::Inner { left, right } => vec![left, right],
+            BinaryKind::Leaf { .. } => vec![b],
         };
-    }
-    for (slot, &c) in children.iter().enumerate() {
-        if matches!(binary[c].kind, BinaryKind::Inner { .. }) {
-            node.children[slot] = ChildRef::inner(collapse(binary, c, out));
+        while children.len() < 4 {
+            let candidate = children
+                .iter()
+                .enumerate()
+                .filter(|(_, &c)| matches!(binary[c].kind, BinaryKind::Inner { .. }))
+                .max_by(|(_, &x), (_, &y)| {
+                    binary[x]
+                        .bounds
+                        .half_area()
+                        .total_cmp(&binary[y].bounds.half_area())
+                })
+                .map(|(slot, _)| slot);
+            let Some(slot) = candidate else { break };
+            let BinaryKind::Inner { left, right } = binary[children[slot]].kind else {
+                unreachable!("filtered to inner nodes")
+            };
+            children[slot] = left;
+            children.insert(slot + 1, right);
         }
+
+        let mut node = Node4::EMPTY;
+        for (slot, &c) in children.iter().enumerate() {
+            let bounds = binary[c].bounds;
+            node.set_box(slot, &WideBox::outward(bounds.min, bounds.max));
+            node.children[slot] = match binary[c].kind {
+                BinaryKind::Leaf { start, count } => self.leaf(start, count),
+                BinaryKind::Inner { .. } => ChildRef::inner(self.collapse(c)),
+            };
+        }
+        self.nodes[index] = node;
+        index as u32
     }
-    out[index] = node;
-    index as u32
+
+    /// Stores the triangles `order[start..start + count]` as pairs (the last
+    /// one repeated when the count is odd) and returns the leaf's reference.
+    fn leaf(&mut self, start: usize, count: usize) -> ChildRef {
+        let first = self.pairs.len();
+        for two in self.order[start..start + count].chunks(2) {
+            let second = *two.last().expect("chunks are never empty");
+            self.pairs
+                .push(TrianglePair::new(self.triangles, two[0], second));
+        }
+        ChildRef::leaf(first as u32, (self.pairs.len() - first) as u32)
+    }
 }
