@@ -13,7 +13,8 @@ use super::node::{ChildRef, Node4, WideBox};
 use super::triangle::TrianglePair;
 use crate::room::Triangle;
 
-/// Number of SAH bins per axis.
+/// Most SAH bins per axis (nodes of fewer triangles use one bin per
+/// triangle, at least two).
 const BINS: usize = 32;
 /// Leaves hold at most this many triangles (the 4-bit count in [`ChildRef`]
 /// allows up to 16). 4 measured best on the hall bench, by a few percent
@@ -42,14 +43,16 @@ impl Aabb {
         max: DVec3::splat(f64::NEG_INFINITY),
     };
 
+    #[inline]
     fn grow(&mut self, other: &Self) {
-        self.min = self.min.min(other.min);
-        self.max = self.max.max(other.max);
+        self.min = lesser(self.min, other.min);
+        self.max = greater(self.max, other.max);
     }
 
+    #[inline]
     fn grow_point(&mut self, p: DVec3) {
-        self.min = self.min.min(p);
-        self.max = self.max.max(p);
+        self.min = lesser(self.min, p);
+        self.max = greater(self.max, p);
     }
 
     /// Half the surface area (enough for SAH ratios); 0 for an empty box.
@@ -61,6 +64,21 @@ impl Aabb {
             e.x * e.y + e.y * e.z + e.z * e.x
         }
     }
+}
+
+/// Component-wise minimum of coordinates (never NaN: the room loader rejects
+/// non-finite vertices), as plain comparisons that compile to `minpd`.
+#[inline]
+fn lesser(a: DVec3, b: DVec3) -> DVec3 {
+    let m = |x: f64, y: f64| if x < y { x } else { y };
+    DVec3::new(m(a.x, b.x), m(a.y, b.y), m(a.z, b.z))
+}
+
+/// Component-wise maximum, like [`lesser`].
+#[inline]
+fn greater(a: DVec3, b: DVec3) -> DVec3 {
+    let m = |x: f64, y: f64| if x > y { x } else { y };
+    DVec3::new(m(a.x, b.x), m(a.y, b.y), m(a.z, b.z))
 }
 
 /// A node of the intermediate binary tree.
@@ -107,6 +125,7 @@ pub(crate) fn build(triangles: &[Triangle]) -> Built {
     let mut builder = BinaryBuilder {
         prims: &prims,
         nodes: &mut binary,
+        bins: Vec::with_capacity(3 * BINS),
     };
     let root = builder.build(&mut order, 0, 0);
 
@@ -146,13 +165,21 @@ impl Prim {
 struct BinaryBuilder<'a> {
     prims: &'a [Prim],
     nodes: &'a mut Vec<BinaryNode>,
+    /// Scratch space for the SAH bins: bounds and triangle count.
+    bins: Vec<(Aabb, usize)>,
 }
 
 /// A chosen split: axis and the first bin of the right side, or a plain
 /// cut of the index range in the middle.
 enum Split {
-    Bin { axis: usize, bin: usize },
-    Median { axis: usize },
+    Bin {
+        axis: usize,
+        bin: usize,
+        bins: usize,
+    },
+    Median {
+        axis: usize,
+    },
 }
 
 impl BinaryBuilder<'_> {
@@ -203,12 +230,12 @@ impl BinaryBuilder<'_> {
         };
 
         let mid = match split {
-            Split::Bin { axis, bin } => {
+            Split::Bin { axis, bin, bins } => {
                 let lo = centroids.min[axis];
-                let scale = BINS as f64 / (centroids.max[axis] - lo);
+                let scale = bins as f64 / (centroids.max[axis] - lo);
                 let prims = self.prims;
                 partition(order, |i| {
-                    bin_of(prims[i as usize].centroid[axis], lo, scale) < bin
+                    bin_of(prims[i as usize].centroid[axis], lo, scale, bins) < bin
                 })
             }
             Split::Median { axis } => {
@@ -234,50 +261,59 @@ impl BinaryBuilder<'_> {
     /// (in triangle-test units, relative to the parent's area), or `None`
     /// if the centroids are all at one point.
     fn best_sah_split(
-        &self,
+        &mut self,
         order: &[u32],
         bounds: &Aabb,
         centroids: &Aabb,
     ) -> Option<(Split, f64)> {
         let parent_area = bounds.half_area();
+        let n = order.len();
+        let bins = n.clamp(2, BINS);
+        // Bin along all three axes in one pass over the triangles.
+        let lo = centroids.min;
+        let extent = centroids.max - lo;
+        let scale = DVec3::select(extent.cmpgt(DVec3::ZERO), bins as f64 / extent, DVec3::ZERO);
+        // Bin b of an axis is slot axis·bins + b of the scratch space.
+        let scratch = &mut self.bins;
+        scratch.clear();
+        scratch.resize(3 * bins, (Aabb::EMPTY, 0));
+        for &i in order {
+            let p = &self.prims[i as usize];
+            for axis in 0..3 {
+                let b = bin_of(p.centroid[axis], lo[axis], scale[axis], bins);
+                let slot = &mut scratch[axis * bins + b];
+                slot.0.grow(&p.bounds);
+                slot.1 += 1;
+            }
+        }
         let mut best: Option<(Split, f64)> = None;
         for axis in 0..3 {
-            let lo = centroids.min[axis];
-            let extent = centroids.max[axis] - lo;
-            if extent <= 0.0 {
+            if extent[axis] <= 0.0 {
                 continue;
             }
-            let scale = BINS as f64 / extent;
-            let mut bin_bounds = [Aabb::EMPTY; BINS];
-            let mut bin_counts = [0usize; BINS];
-            for &i in order {
-                let p = &self.prims[i as usize];
-                let b = bin_of(p.centroid[axis], lo, scale);
-                bin_bounds[b].grow(&p.bounds);
-                bin_counts[b] += 1;
-            }
+            let axis_bins = &scratch[axis * bins..(axis + 1) * bins];
             // Sweep from the right: area × count of bins b.. for each b.
             let mut right_cost = [0.0; BINS];
             let mut acc = Aabb::EMPTY;
             let mut count = 0;
-            for b in (1..BINS).rev() {
-                acc.grow(&bin_bounds[b]);
-                count += bin_counts[b];
+            for b in (1..bins).rev() {
+                acc.grow(&axis_bins[b].0);
+                count += axis_bins[b].1;
                 right_cost[b] = acc.half_area() * count as f64;
             }
             let mut acc = Aabb::EMPTY;
             let mut count = 0;
-            for b in 1..BINS {
-                acc.grow(&bin_bounds[b - 1]);
-                count += bin_counts[b - 1];
-                if count == 0 || count == order.len() {
+            for b in 1..bins {
+                acc.grow(&axis_bins[b - 1].0);
+                count += axis_bins[b - 1].1;
+                if count == 0 || count == n {
                     continue;
                 }
                 let cost = NODE_COST
                     + TRIANGLE_COST * (acc.half_area() * count as f64 + right_cost[b])
                         / parent_area.max(f64::MIN_POSITIVE);
                 if best.as_ref().is_none_or(|(_, c)| cost < *c) {
-                    best = Some((Split::Bin { axis, bin: b }, cost));
+                    best = Some((Split::Bin { axis, bin: b, bins }, cost));
                 }
             }
         }
@@ -287,8 +323,9 @@ impl BinaryBuilder<'_> {
 
 /// Bin of a centroid coordinate, clamped into range.
 #[inline]
-fn bin_of(c: f64, lo: f64, scale: f64) -> usize {
-    (((c - lo) * scale) as usize).min(BINS - 1)
+fn bin_of(c: f64, lo: f64, scale: f64, bins: usize) -> usize {
+    // c ≥ lo, so the product is never negative; i32 converts in one instruction.
+    (((c - lo) * scale) as i32).min(bins as i32 - 1) as usize
 }
 
 fn longest_axis(b: &Aabb) -> usize {
