@@ -11,6 +11,7 @@ pub mod air;
 pub mod bands;
 pub mod geometry;
 pub mod gonio;
+mod lanes;
 pub mod law;
 pub mod metrics;
 pub mod output;

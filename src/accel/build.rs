@@ -11,6 +11,7 @@ use glam::DVec3;
 
 use super::node::{ChildRef, Node4, WideBox};
 use super::triangle::TrianglePair;
+use crate::lanes::F2;
 use crate::room::Triangle;
 
 /// Most SAH bins per axis (nodes of fewer triangles use one bin per
@@ -30,55 +31,63 @@ const TRIANGLE_COST: f64 = 1.0;
 /// traversal stack) for pathological inputs.
 const SAH_DEPTH: usize = 40;
 
-/// An axis-aligned box in f64.
+/// An axis-aligned box in f64. Each corner is stored as two pairs of lanes,
+/// (x, y) and (z, z), so that growing a box takes four two-lane operations.
 #[derive(Clone, Copy, Debug)]
+#[repr(C, align(16))]
 pub(crate) struct Aabb {
-    pub(crate) min: DVec3,
-    pub(crate) max: DVec3,
+    min: [[f64; 2]; 2],
+    max: [[f64; 2]; 2],
+}
+
+/// A point as two pairs of lanes, (x, y) and (z, z).
+fn lanes(p: DVec3) -> [[f64; 2]; 2] {
+    [[p.x, p.y], [p.z, p.z]]
 }
 
 impl Aabb {
     const EMPTY: Self = Self {
-        min: DVec3::splat(f64::INFINITY),
-        max: DVec3::splat(f64::NEG_INFINITY),
+        min: [[f64::INFINITY; 2]; 2],
+        max: [[f64::NEG_INFINITY; 2]; 2],
     };
 
+    /// Grows the box to contain `other` (coordinates are never NaN: the
+    /// room loader rejects non-finite vertices).
     #[inline]
     fn grow(&mut self, other: &Self) {
-        self.min = lesser(self.min, other.min);
-        self.max = greater(self.max, other.max);
+        for h in 0..2 {
+            self.min[h] = F2::load(&self.min[h])
+                .min(F2::load(&other.min[h]))
+                .to_array();
+            self.max[h] = F2::load(&self.max[h])
+                .max(F2::load(&other.max[h]))
+                .to_array();
+        }
     }
 
     #[inline]
     fn grow_point(&mut self, p: DVec3) {
-        self.min = lesser(self.min, p);
-        self.max = greater(self.max, p);
+        let p = lanes(p);
+        self.grow(&Self { min: p, max: p });
+    }
+
+    fn min(&self) -> DVec3 {
+        DVec3::new(self.min[0][0], self.min[0][1], self.min[1][0])
+    }
+
+    fn max(&self) -> DVec3 {
+        DVec3::new(self.max[0][0], self.max[0][1], self.max[1][0])
     }
 
     /// Half the surface area (enough for SAH ratios); 0 for an empty box.
     fn half_area(&self) -> f64 {
-        let e = self.max - self.min;
+        let e = self.max() - self.min();
         if e.x < 0.0 {
             0.0
         } else {
             e.x * e.y + e.y * e.z + e.z * e.x
         }
     }
-}
-
-/// Component-wise minimum of coordinates (never NaN: the room loader rejects
-/// non-finite vertices), as plain comparisons that compile to `minpd`.
-#[inline]
-fn lesser(a: DVec3, b: DVec3) -> DVec3 {
-    let m = |x: f64, y: f64| if x < y { x } else { y };
-    DVec3::new(m(a.x, b.x), m(a.y, b.y), m(a.z, b.z))
-}
-
-/// Component-wise maximum, like [`lesser`].
-#[inline]
-fn greater(a: DVec3, b: DVec3) -> DVec3 {
-    let m = |x: f64, y: f64| if x > y { x } else { y };
-    DVec3::new(m(a.x, b.x), m(a.y, b.y), m(a.z, b.z))
 }
 
 /// A node of the intermediate binary tree.
@@ -143,10 +152,10 @@ pub(crate) fn build(triangles: &[Triangle]) -> Built {
     }
 }
 
-/// Bounds and centroid of one triangle.
+/// Bounds and centroid of one triangle (centroid lanes as in [`Aabb`]).
 struct Prim {
     bounds: Aabb,
-    centroid: DVec3,
+    centroid: [[f64; 2]; 2],
 }
 
 impl Prim {
@@ -157,8 +166,44 @@ impl Prim {
         }
         Self {
             bounds,
-            centroid: (bounds.min + bounds.max) * 0.5,
+            centroid: lanes((bounds.min() + bounds.max()) * 0.5),
         }
+    }
+}
+
+/// Where centroids fall into `bins` bins per axis: bin = ⌊(c − lo) · scale⌋,
+/// clamped into range, for the three axes at once.
+struct Binning {
+    lo: [[f64; 2]; 2],
+    scale: [[f64; 2]; 2],
+    bins: usize,
+}
+
+impl Binning {
+    /// Bins over the centroid bounds `centroids`; an axis where they all
+    /// coincide puts everything in bin 0.
+    fn new(centroids: &Aabb, bins: usize) -> Self {
+        let extent = centroids.max() - centroids.min();
+        let scale = DVec3::select(extent.cmpgt(DVec3::ZERO), bins as f64 / extent, DVec3::ZERO);
+        Self {
+            lo: centroids.min,
+            scale: lanes(scale),
+            bins,
+        }
+    }
+
+    /// The bin of `centroid` along x, y and z.
+    #[inline]
+    fn of(&self, centroid: &[[f64; 2]; 2]) -> [usize; 3] {
+        let bin = |h: usize| {
+            F2::load(&centroid[h])
+                .sub(F2::load(&self.lo[h]))
+                .mul(F2::load(&self.scale[h]))
+                .to_i32()
+        };
+        let ([x, y], [z, _]) = (bin(0), bin(1));
+        let last = self.bins as i32 - 1;
+        [x, y, z].map(|b| b.clamp(0, last) as usize)
     }
 }
 
@@ -191,7 +236,10 @@ impl BinaryBuilder<'_> {
         for &i in order.iter() {
             let p = &self.prims[i as usize];
             bounds.grow(&p.bounds);
-            centroids.grow_point(p.centroid);
+            centroids.grow(&Aabb {
+                min: p.centroid,
+                max: p.centroid,
+            });
         }
         let n = order.len();
         let index = self.nodes.len();
@@ -202,7 +250,8 @@ impl BinaryBuilder<'_> {
                 count: n,
             },
         });
-        if n == 1 {
+        // Two triangles are one pair test however they are split.
+        if n <= 2 {
             return index;
         }
 
@@ -231,19 +280,22 @@ impl BinaryBuilder<'_> {
 
         let mid = match split {
             Split::Bin { axis, bin, bins } => {
-                let lo = centroids.min[axis];
-                let scale = bins as f64 / (centroids.max[axis] - lo);
+                let binning = Binning::new(&centroids, bins);
                 let prims = self.prims;
                 partition(order, |i| {
-                    bin_of(prims[i as usize].centroid[axis], lo, scale, bins) < bin
+                    binning.of(&prims[i as usize].centroid)[axis] < bin
                 })
             }
             Split::Median { axis } => {
                 let prims = self.prims;
                 let mid = n / 2;
+                let coordinate = |i: u32| {
+                    let c = &prims[i as usize].centroid;
+                    [c[0][0], c[0][1], c[1][0]][axis]
+                };
                 order.select_nth_unstable_by(mid, |&a, &b| {
-                    let ca = prims[a as usize].centroid[axis];
-                    let cb = prims[b as usize].centroid[axis];
+                    let ca = coordinate(a);
+                    let cb = coordinate(b);
                     ca.total_cmp(&cb).then(a.cmp(&b))
                 });
                 mid
@@ -270,17 +322,15 @@ impl BinaryBuilder<'_> {
         let n = order.len();
         let bins = n.clamp(2, BINS);
         // Bin along all three axes in one pass over the triangles.
-        let lo = centroids.min;
-        let extent = centroids.max - lo;
-        let scale = DVec3::select(extent.cmpgt(DVec3::ZERO), bins as f64 / extent, DVec3::ZERO);
+        let extent = centroids.max() - centroids.min();
+        let binning = Binning::new(centroids, bins);
         // Bin b of an axis is slot axis·bins + b of the scratch space.
         let scratch = &mut self.bins;
         scratch.clear();
         scratch.resize(3 * bins, (Aabb::EMPTY, 0));
         for &i in order {
             let p = &self.prims[i as usize];
-            for axis in 0..3 {
-                let b = bin_of(p.centroid[axis], lo[axis], scale[axis], bins);
+            for (axis, b) in binning.of(&p.centroid).into_iter().enumerate() {
                 let slot = &mut scratch[axis * bins + b];
                 slot.0.grow(&p.bounds);
                 slot.1 += 1;
@@ -321,15 +371,8 @@ impl BinaryBuilder<'_> {
     }
 }
 
-/// Bin of a centroid coordinate, clamped into range.
-#[inline]
-fn bin_of(c: f64, lo: f64, scale: f64, bins: usize) -> usize {
-    // c ≥ lo, so the product is never negative; i32 converts in one instruction.
-    (((c - lo) * scale) as i32).min(bins as i32 - 1) as usize
-}
-
 fn longest_axis(b: &Aabb) -> usize {
-    let e = b.max - b.min;
+    let e = b.max() - b.min();
     if e.x >= e.y && e.x >= e.z {
         0
     } else if e.y >= e.z {
@@ -401,7 +444,7 @@ impl Collapser<'_> {
         let mut node = Node4::EMPTY;
         for (slot, &c) in children.iter().enumerate() {
             let bounds = binary[c].bounds;
-            node.set_box(slot, &WideBox::outward(bounds.min, bounds.max));
+            node.set_box(slot, &WideBox::outward(bounds.min(), bounds.max()));
             node.children[slot] = match binary[c].kind {
                 BinaryKind::Leaf { start, count } => self.leaf(start, count),
                 BinaryKind::Inner { .. } => ChildRef::inner(self.collapse(c)),

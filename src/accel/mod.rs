@@ -8,7 +8,7 @@
 //! Inside: a 4-wide tree built by binned SAH ([`build`]), f32 child boxes
 //! tested four at a time with a conservative slab test, and exact f64
 //! watertight triangle tests, two triangles at a time in two f64 lanes
-//! ([`traverse`], [`triangle`], [`lanes`]). A ray never slips between two
+//! ([`traverse`], [`triangle`]). A ray never slips between two
 //! triangles that share an edge or a vertex, and the distances are exactly
 //! those of the scalar f64 test.
 //!
@@ -18,7 +18,6 @@
 //! cannot let the ray escape through a neighbouring surface.
 
 mod build;
-mod lanes;
 mod node;
 mod traverse;
 mod triangle;

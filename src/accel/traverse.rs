@@ -6,9 +6,9 @@ use std::mem::MaybeUninit;
 
 use glam::DVec3;
 
-use super::lanes::F4;
 use super::node::{ChildRef, Node4};
 use super::triangle::{PairRay, ShearedRay, TrianglePair};
+use crate::lanes::F4;
 
 /// Stack capacity. The build bounds the binary depth (SAH up to depth 40,
 /// then median halving, at most 27 more levels for 2^27 triangles); each

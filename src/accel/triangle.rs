@@ -17,7 +17,7 @@
 
 use glam::DVec3;
 
-use super::lanes::F2;
+use crate::lanes::F2;
 use crate::room::Triangle;
 
 /// A coordinate axis; as an index it is known to be below 3.

@@ -11,4 +11,4 @@ mod echogram;
 mod sphere;
 
 pub use echogram::{ArrivalLog, Echogram};
-pub use sphere::{default_radius_m, lateral_axis, DetectionSphere, TARGET_HITS_PER_BIN};
+pub use sphere::{default_radius_m, lateral_axis, DetectionSphere, SphereSet, TARGET_HITS_PER_BIN};

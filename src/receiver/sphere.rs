@@ -4,6 +4,8 @@ use std::f64::consts::PI;
 
 use glam::DVec3;
 
+use crate::lanes::F2;
+
 /// A detection sphere around a receiver position.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct DetectionSphere {
@@ -44,6 +46,87 @@ impl DetectionSphere {
         let enter = (t_closest - half).max(0.0);
         let leave = (t_closest + half).min(length_m);
         (leave > enter).then_some((0.5 * (enter + leave), leave - enter))
+    }
+}
+
+/// Detection spheres laid out two by two, so that one segment is tested
+/// against two spheres with the same instructions (two f64 lanes). Each lane
+/// computes exactly the first test of [`DetectionSphere::chord`]; the few
+/// spheres that pass it get the full chord.
+#[derive(Clone, Debug)]
+pub struct SphereSet {
+    spheres: Vec<DetectionSphere>,
+    pairs: Vec<SpherePair>,
+}
+
+/// Centres and squared radii of two spheres, by lane. A missing second
+/// sphere has a squared radius of −∞, which no line comes within.
+#[derive(Clone, Copy, Debug)]
+#[repr(C, align(16))]
+struct SpherePair {
+    centre: [[f64; 2]; 3],
+    radius_sq_m2: [f64; 2],
+}
+
+impl SphereSet {
+    /// The set of `spheres`, in that order.
+    #[must_use]
+    pub fn new(spheres: &[DetectionSphere]) -> Self {
+        let pairs = spheres
+            .chunks(2)
+            .map(|two| {
+                let lane = |k: usize| two.get(k).map(|s| (s.centre, s.radius_m * s.radius_m));
+                let (c0, r0) = lane(0).expect("chunks are never empty");
+                let (c1, r1) = lane(1).unwrap_or((DVec3::ZERO, f64::NEG_INFINITY));
+                SpherePair {
+                    centre: [[c0.x, c1.x], [c0.y, c1.y], [c0.z, c1.z]],
+                    radius_sq_m2: [r0, r1],
+                }
+            })
+            .collect();
+        Self {
+            spheres: spheres.to_vec(),
+            pairs,
+        }
+    }
+
+    /// The spheres, in order.
+    #[must_use]
+    pub fn spheres(&self) -> &[DetectionSphere] {
+        &self.spheres
+    }
+
+    /// Calls `crossing(k, sphere, mid_m, chord_m)` for every sphere `k` that
+    /// the segment `origin + t·direction`, t ∈ [0, `length_m`], crosses, in
+    /// index order, with what [`DetectionSphere::chord`] returns for it.
+    #[inline]
+    pub fn for_each_crossing(
+        &self,
+        origin: DVec3,
+        direction: DVec3,
+        length_m: f64,
+        mut crossing: impl FnMut(usize, &DetectionSphere, f64, f64),
+    ) {
+        let o = [origin.x, origin.y, origin.z].map(F2::splat);
+        let d = [direction.x, direction.y, direction.z].map(F2::splat);
+        for (p, pair) in self.pairs.iter().enumerate() {
+            // The lines of `chord` up to its first return, per lane.
+            let to_x = F2::load(&pair.centre[0]).sub(o[0]);
+            let to_y = F2::load(&pair.centre[1]).sub(o[1]);
+            let to_z = F2::load(&pair.centre[2]).sub(o[2]);
+            let t_closest = to_x.mul(d[0]).add(to_y.mul(d[1])).add(to_z.mul(d[2]));
+            let length_sq = to_x.mul(to_x).add(to_y.mul(to_y)).add(to_z.mul(to_z));
+            let miss_sq = length_sq.sub(t_closest.mul(t_closest));
+            let mut near = miss_sq.lt_mask(F2::load(&pair.radius_sq_m2));
+            while near != 0 {
+                let k = 2 * p + near.trailing_zeros() as usize;
+                near &= near - 1;
+                let sphere = &self.spheres[k];
+                if let Some((mid_m, chord_m)) = sphere.chord(origin, direction, length_m) {
+                    crossing(k, sphere, mid_m, chord_m);
+                }
+            }
+        }
     }
 }
 
@@ -134,6 +217,42 @@ mod tests {
         let expected = 1.0 / (4.0 * std::f64::consts::PI * 100.0);
         // About 1000 hits: relative standard error ≈ 1/√1000 · 0.5 ≈ 1.6 %; allow 5 %.
         assert_relative_eq!(sum, expected, max_relative = 0.05);
+    }
+
+    #[test]
+    fn sphere_set_finds_what_chord_finds() {
+        // Our contract: the two-lane test gives exactly the crossings and
+        // values of `chord`, sphere by sphere (odd count: a padded lane).
+        let mut rng = Stream::new(9, 0);
+        let spheres: Vec<DetectionSphere> = (0..5)
+            .map(|_| {
+                let c = DVec3::new(rng.uniform(), rng.uniform(), rng.uniform()) * 6.0;
+                DetectionSphere::new(c, 0.3 + rng.uniform())
+            })
+            .collect();
+        let set = SphereSet::new(&spheres);
+        let mut found = 0;
+        for _ in 0..20_000 {
+            let o = DVec3::new(rng.uniform(), rng.uniform(), rng.uniform()) * 6.0;
+            let z = 1.0 - 2.0 * rng.uniform();
+            let phi = std::f64::consts::TAU * rng.uniform();
+            let r = (1.0 - z * z).sqrt();
+            let d = DVec3::new(r * phi.cos(), r * phi.sin(), z);
+            let len = 4.0 * rng.uniform();
+            let mut got = Vec::new();
+            set.for_each_crossing(o, d, len, |k, _, mid, chord| got.push((k, mid, chord)));
+            let want: Vec<(usize, f64, f64)> = spheres
+                .iter()
+                .enumerate()
+                .filter_map(|(k, s)| s.chord(o, d, len).map(|(m, c)| (k, m, c)))
+                .collect();
+            assert_eq!(got, want);
+            found += got.len();
+        }
+        assert!(
+            found > 1000,
+            "only {found} crossings: the test exercises too little"
+        );
     }
 
     #[test]

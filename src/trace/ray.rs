@@ -8,7 +8,7 @@ use crate::bands::Bands;
 use crate::geometry::Frame;
 use crate::law::ReflectionLaw;
 use crate::random::Stream;
-use crate::receiver::{ArrivalLog, DetectionSphere};
+use crate::receiver::{ArrivalLog, SphereSet};
 
 /// Distance a reflected ray starts off the wall along the normal, m
 /// (common practice, no source: keeps the next query from finding the same wall).
@@ -37,8 +37,10 @@ pub(super) struct Scene<'a> {
     pub air_min_per_m: f64,
     pub has_air: bool,
     pub roulette: Option<Roulette>,
-    /// Detection sphere and lateral axis per pair, source-major.
-    pub receivers: Vec<ReceiverSlot>,
+    /// The receivers' detection spheres.
+    pub spheres: SphereSet,
+    /// Lateral axis per pair, source-major.
+    pub lateral_axes: Vec<DVec3>,
     pub source_positions: Vec<DVec3>,
 }
 
@@ -81,13 +83,6 @@ impl TriangleShading {
     }
 }
 
-/// A receiver as one source's rays see it.
-pub(super) struct ReceiverSlot {
-    pub sphere: DetectionSphere,
-    /// Lateral axis of the pair.
-    pub lateral_axis: DVec3,
-}
-
 /// Per-chunk counters, added in chunk order.
 #[derive(Clone, Default)]
 pub(super) struct Tally {
@@ -122,11 +117,15 @@ impl Tally {
 const EXP_LOWER_BOUND_FACTOR: f64 = 1.0 - 1.0 / (1u64 << 50) as f64;
 
 /// The largest of the band values, for weights (never negative; unused
-/// bands hold 0): the same as `Bands::max_of(bands)` for them, as a
-/// fixed-width loop without branches.
+/// bands hold 0): the same as `Bands::max_of(bands)` for them, as a short
+/// tree of comparisons that compiles to a few `maxpd`.
 #[inline]
 fn largest_weight(w: &Bands) -> f64 {
-    w.0.iter().fold(0.0, |m, &x| if x > m { x } else { m })
+    let m = |a: f64, b: f64| if a > b { a } else { b };
+    let x = &w.0;
+    const _: () = assert!(crate::bands::MAX_BANDS == 8);
+    let half = [m(x[0], x[4]), m(x[1], x[5]), m(x[2], x[6]), m(x[3], x[7])];
+    m(m(half[0], half[2]), m(half[1], half[3]))
 }
 
 impl Scene<'_> {
@@ -152,9 +151,7 @@ impl Scene<'_> {
         log: &mut L,
     ) {
         let source = (index / self.rays_per_source as u64) as usize;
-        let per_source = self.receivers.len() / self.source_positions.len();
-        let first_pair = source * per_source;
-        let receivers = &self.receivers[first_pair..first_pair + per_source];
+        let first_pair = source * self.spheres.spheres().len();
         let mut rng = Stream::new(self.seed, index);
         let mut dir = uniform_sphere(rng.uniform2());
         let mut pos = self.source_positions[source];
@@ -176,14 +173,13 @@ impl Scene<'_> {
 
             // Receivers count reflected sound only: the direct sound is added exactly.
             if reflected {
-                for (k, receiver) in receivers.iter().enumerate() {
-                    let sphere = &receiver.sphere;
-                    if let Some((mid_m, chord_m)) = sphere.chord(pos, dir, segment_m) {
+                self.spheres
+                    .for_each_crossing(pos, dir, segment_m, |k, sphere, mid_m, chord_m| {
                         let at_m = path_m + mid_m;
                         let fluence = weight
                             * self.air_factor(at_m)
                             * (chord_m * sphere.inverse_volume_per_m3);
-                        let cos = dir.dot(receiver.lateral_axis);
+                        let cos = dir.dot(self.lateral_axes[first_pair + k]);
                         let time_s = at_m / self.speed_m_s;
                         arrivals.add(
                             first_pair + k,
@@ -193,8 +189,7 @@ impl Scene<'_> {
                             fluence,
                             cos * cos,
                         );
-                    }
-                }
+                    });
             }
             path_m += segment_m;
 

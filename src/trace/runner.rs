@@ -7,11 +7,13 @@ use glam::DVec3;
 use rayon::prelude::*;
 
 use super::options::{TraceError, TraceOptions};
-use super::ray::{NoLog, QueryLog, ReceiverSlot, Scene, Tally, TriangleShading};
+use super::ray::{NoLog, QueryLog, Scene, Tally, TriangleShading};
 use super::result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
 use crate::accel::Bvh;
 use crate::bands::Bands;
-use crate::receiver::{default_radius_m, lateral_axis, ArrivalLog, DetectionSphere, Echogram};
+use crate::receiver::{
+    default_radius_m, lateral_axis, ArrivalLog, DetectionSphere, Echogram, SphereSet,
+};
 use crate::room::inside::distance_to_triangle_m;
 use crate::room::{estimates, Room};
 
@@ -320,16 +322,9 @@ fn build_scene<'a>(
         .iter()
         .copied()
         .fold(f64::INFINITY, f64::min);
-    // Pairs are source-major, like the echograms a chunk fills.
-    let receivers = pairs
+    let spheres: Vec<DetectionSphere> = receivers
         .iter()
-        .map(|p| {
-            let r = &receivers[p.receiver];
-            ReceiverSlot {
-                sphere: DetectionSphere::new(r.position, r.radius_m),
-                lateral_axis: p.lateral_axis,
-            }
-        })
+        .map(|r| DetectionSphere::new(r.position, r.radius_m))
         .collect();
     Scene {
         bvh,
@@ -347,7 +342,8 @@ fn build_scene<'a>(
         air_min_per_m,
         has_air: air_per_m.0.iter().any(|&m| m != 0.0),
         roulette: options.roulette,
-        receivers,
+        spheres: SphereSet::new(&spheres),
+        lateral_axes: pairs.iter().map(|p| p.lateral_axis).collect(),
         source_positions: sources.iter().map(|s| s.position).collect::<Vec<DVec3>>(),
     }
 }

@@ -103,6 +103,28 @@ mod imp {
             unsafe { _mm_storeu_pd(out.as_mut_ptr(), self.0) };
             out
         }
+        /// Lane-wise `if self < o { self } else { o }`.
+        #[inline(always)]
+        pub(crate) fn min(self, o: Self) -> Self {
+            Self(unsafe { _mm_min_pd(self.0, o.0) })
+        }
+        /// Lane-wise `if self > o { self } else { o }`.
+        #[inline(always)]
+        pub(crate) fn max(self, o: Self) -> Self {
+            Self(unsafe { _mm_max_pd(self.0, o.0) })
+        }
+        /// Lanes truncated toward zero to i32; NaN and values outside the
+        /// i32 range give `i32::MIN`.
+        #[inline(always)]
+        pub(crate) fn to_i32(self) -> [i32; 2] {
+            let v = unsafe { _mm_cvttpd_epi32(self.0) };
+            unsafe {
+                [
+                    _mm_cvtsi128_si32(v),
+                    _mm_cvtsi128_si32(_mm_shuffle_epi32::<1>(v)),
+                ]
+            }
+        }
     }
 }
 
@@ -199,6 +221,26 @@ mod imp {
         #[inline(always)]
         pub(crate) fn to_array(self) -> [f64; 2] {
             self.0
+        }
+        #[inline(always)]
+        pub(crate) fn min(self, o: Self) -> Self {
+            let m = |a: f64, b: f64| if a < b { a } else { b };
+            Self([m(self.0[0], o.0[0]), m(self.0[1], o.0[1])])
+        }
+        #[inline(always)]
+        pub(crate) fn max(self, o: Self) -> Self {
+            let m = |a: f64, b: f64| if a > b { a } else { b };
+            Self([m(self.0[0], o.0[0]), m(self.0[1], o.0[1])])
+        }
+        #[inline(always)]
+        pub(crate) fn to_i32(self) -> [i32; 2] {
+            self.0.map(|x| {
+                if x > -2147483649.0 && x < 2147483648.0 {
+                    x as i32
+                } else {
+                    i32::MIN
+                }
+            })
         }
     }
 }
