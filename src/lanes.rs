@@ -26,6 +26,10 @@ mod imp {
             Self(unsafe { _mm_load_ps(row.as_ptr()) })
         }
         #[inline(always)]
+        pub(crate) fn add(self, o: Self) -> Self {
+            Self(unsafe { _mm_add_ps(self.0, o.0) })
+        }
+        #[inline(always)]
         pub(crate) fn sub(self, o: Self) -> Self {
             Self(unsafe { _mm_sub_ps(self.0, o.0) })
         }
@@ -47,6 +51,11 @@ mod imp {
         #[inline(always)]
         pub(crate) fn le_mask(self, o: Self) -> u32 {
             unsafe { _mm_movemask_ps(_mm_cmple_ps(self.0, o.0)) as u32 }
+        }
+        /// Bit i set where lane i of `self` < lane i of `o`.
+        #[inline(always)]
+        pub(crate) fn lt_mask(self, o: Self) -> u32 {
+            unsafe { _mm_movemask_ps(_mm_cmplt_ps(self.0, o.0)) as u32 }
         }
         #[inline(always)]
         pub(crate) fn to_array(self) -> [f32; 4] {
@@ -144,6 +153,10 @@ mod imp {
             Self(*row)
         }
         #[inline(always)]
+        pub(crate) fn add(self, o: Self) -> Self {
+            Self(std::array::from_fn(|i| self.0[i] + o.0[i]))
+        }
+        #[inline(always)]
         pub(crate) fn sub(self, o: Self) -> Self {
             Self(std::array::from_fn(|i| self.0[i] - o.0[i]))
         }
@@ -174,6 +187,10 @@ mod imp {
         #[inline(always)]
         pub(crate) fn le_mask(self, o: Self) -> u32 {
             (0..4).fold(0, |m, i| m | (u32::from(self.0[i] <= o.0[i]) << i))
+        }
+        #[inline(always)]
+        pub(crate) fn lt_mask(self, o: Self) -> u32 {
+            (0..4).fold(0, |m, i| m | (u32::from(self.0[i] < o.0[i]) << i))
         }
         #[inline(always)]
         pub(crate) fn to_array(self) -> [f32; 4] {

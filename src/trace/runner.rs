@@ -322,6 +322,15 @@ fn build_scene<'a>(
         .iter()
         .copied()
         .fold(f64::INFINITY, f64::min);
+    // Every segment starts at a source or on a triangle (off it by far less than a metre).
+    let reach_m = room
+        .triangles
+        .iter()
+        .flat_map(|t| t.vertices)
+        .chain(sources.iter().map(|s| s.position))
+        .map(|p| p.abs().max_element())
+        .fold(0.0, f64::max)
+        + 1.0;
     let spheres: Vec<DetectionSphere> = receivers
         .iter()
         .map(|r| DetectionSphere::new(r.position, r.radius_m))
@@ -342,7 +351,7 @@ fn build_scene<'a>(
         air_min_per_m,
         has_air: air_per_m.0.iter().any(|&m| m != 0.0),
         roulette: options.roulette,
-        spheres: SphereSet::new(&spheres),
+        spheres: SphereSet::new(&spheres, reach_m),
         lateral_axes: pairs.iter().map(|p| p.lateral_axis).collect(),
         source_positions: sources.iter().map(|s| s.position).collect::<Vec<DVec3>>(),
     }
