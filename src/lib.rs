@@ -12,6 +12,7 @@ pub mod bands;
 pub mod compare;
 pub mod geometry;
 pub mod gonio;
+mod lanes;
 pub mod law;
 pub mod metrics;
 pub mod output;

@@ -10,10 +10,12 @@
 use glam::DVec3;
 
 use super::node::{ChildRef, Node4, WideBox};
-use super::triangle::LeafTriangle;
+use super::triangle::TrianglePair;
+use crate::lanes::F2;
 use crate::room::Triangle;
 
-/// Number of SAH bins per axis.
+/// Most SAH bins per axis (nodes of fewer triangles use one bin per
+/// triangle, at least two).
 const BINS: usize = 32;
 /// Leaves hold at most this many triangles (the 4-bit count in [`ChildRef`]
 /// allows up to 16). 4 measured best on the hall bench, by a few percent
@@ -29,32 +31,57 @@ const TRIANGLE_COST: f64 = 1.0;
 /// traversal stack) for pathological inputs.
 const SAH_DEPTH: usize = 40;
 
-/// An axis-aligned box in f64.
+/// An axis-aligned box in f64. Each corner is stored as two pairs of lanes,
+/// (x, y) and (z, z), so that growing a box takes four two-lane operations.
 #[derive(Clone, Copy, Debug)]
+#[repr(C, align(16))]
 pub(crate) struct Aabb {
-    pub(crate) min: DVec3,
-    pub(crate) max: DVec3,
+    min: [[f64; 2]; 2],
+    max: [[f64; 2]; 2],
+}
+
+/// A point as two pairs of lanes, (x, y) and (z, z).
+fn lanes(p: DVec3) -> [[f64; 2]; 2] {
+    [[p.x, p.y], [p.z, p.z]]
 }
 
 impl Aabb {
     const EMPTY: Self = Self {
-        min: DVec3::splat(f64::INFINITY),
-        max: DVec3::splat(f64::NEG_INFINITY),
+        min: [[f64::INFINITY; 2]; 2],
+        max: [[f64::NEG_INFINITY; 2]; 2],
     };
 
+    /// Grows the box to contain `other` (coordinates are never NaN: the
+    /// room loader rejects non-finite vertices).
+    #[inline]
     fn grow(&mut self, other: &Self) {
-        self.min = self.min.min(other.min);
-        self.max = self.max.max(other.max);
+        for h in 0..2 {
+            self.min[h] = F2::load(&self.min[h])
+                .min(F2::load(&other.min[h]))
+                .to_array();
+            self.max[h] = F2::load(&self.max[h])
+                .max(F2::load(&other.max[h]))
+                .to_array();
+        }
     }
 
+    #[inline]
     fn grow_point(&mut self, p: DVec3) {
-        self.min = self.min.min(p);
-        self.max = self.max.max(p);
+        let p = lanes(p);
+        self.grow(&Self { min: p, max: p });
+    }
+
+    fn min(&self) -> DVec3 {
+        DVec3::new(self.min[0][0], self.min[0][1], self.min[1][0])
+    }
+
+    fn max(&self) -> DVec3 {
+        DVec3::new(self.max[0][0], self.max[0][1], self.max[1][0])
     }
 
     /// Half the surface area (enough for SAH ratios); 0 for an empty box.
     fn half_area(&self) -> f64 {
-        let e = self.max - self.min;
+        let e = self.max() - self.min();
         if e.x < 0.0 {
             0.0
         } else {
@@ -78,10 +105,10 @@ enum BinaryKind {
 }
 
 /// Everything the build makes: the wide nodes (root at 0; empty when there
-/// are no triangles) and the triangles in leaf order.
+/// are no triangles) and the leaves' triangle pairs.
 pub(crate) struct Built {
     pub(crate) nodes: Vec<Node4>,
-    pub(crate) triangles: Vec<LeafTriangle>,
+    pub(crate) pairs: Vec<TrianglePair>,
 }
 
 /// Builds the tree over `triangles`.
@@ -98,7 +125,7 @@ pub(crate) fn build(triangles: &[Triangle]) -> Built {
     if triangles.is_empty() {
         return Built {
             nodes: Vec::new(),
-            triangles: Vec::new(),
+            pairs: Vec::new(),
         };
     }
     let prims: Vec<Prim> = triangles.iter().map(Prim::new).collect();
@@ -107,33 +134,28 @@ pub(crate) fn build(triangles: &[Triangle]) -> Built {
     let mut builder = BinaryBuilder {
         prims: &prims,
         nodes: &mut binary,
+        bins: Vec::with_capacity(3 * BINS),
     };
     let root = builder.build(&mut order, 0, 0);
 
-    let leaf_triangles = order
-        .iter()
-        .map(|&i| {
-            let t = &triangles[i as usize];
-            LeafTriangle {
-                vertices: t.vertices.map(|v| v.to_array()),
-                index: i,
-                surface: t.surface,
-            }
-        })
-        .collect();
-
-    let mut nodes = Vec::with_capacity(binary.len() / 2 + 1);
-    collapse(&binary, root, &mut nodes);
+    let mut collapser = Collapser {
+        binary: &binary,
+        order: &order,
+        triangles,
+        nodes: Vec::with_capacity(binary.len() / 2 + 1),
+        pairs: Vec::with_capacity(triangles.len() / 2 + 1),
+    };
+    collapser.collapse(root);
     Built {
-        nodes,
-        triangles: leaf_triangles,
+        nodes: collapser.nodes,
+        pairs: collapser.pairs,
     }
 }
 
-/// Bounds and centroid of one triangle.
+/// Bounds and centroid of one triangle (centroid lanes as in [`Aabb`]).
 struct Prim {
     bounds: Aabb,
-    centroid: DVec3,
+    centroid: [[f64; 2]; 2],
 }
 
 impl Prim {
@@ -144,21 +166,65 @@ impl Prim {
         }
         Self {
             bounds,
-            centroid: (bounds.min + bounds.max) * 0.5,
+            centroid: lanes((bounds.min() + bounds.max()) * 0.5),
         }
+    }
+}
+
+/// Where centroids fall into `bins` bins per axis: bin = ⌊(c − lo) · scale⌋,
+/// clamped into range, for the three axes at once.
+struct Binning {
+    lo: [[f64; 2]; 2],
+    scale: [[f64; 2]; 2],
+    bins: usize,
+}
+
+impl Binning {
+    /// Bins over the centroid bounds `centroids`; an axis where they all
+    /// coincide puts everything in bin 0.
+    fn new(centroids: &Aabb, bins: usize) -> Self {
+        let extent = centroids.max() - centroids.min();
+        let scale = DVec3::select(extent.cmpgt(DVec3::ZERO), bins as f64 / extent, DVec3::ZERO);
+        Self {
+            lo: centroids.min,
+            scale: lanes(scale),
+            bins,
+        }
+    }
+
+    /// The bin of `centroid` along x, y and z.
+    #[inline]
+    fn of(&self, centroid: &[[f64; 2]; 2]) -> [usize; 3] {
+        let bin = |h: usize| {
+            F2::load(&centroid[h])
+                .sub(F2::load(&self.lo[h]))
+                .mul(F2::load(&self.scale[h]))
+                .to_i32()
+        };
+        let ([x, y], [z, _]) = (bin(0), bin(1));
+        let last = self.bins as i32 - 1;
+        [x, y, z].map(|b| b.clamp(0, last) as usize)
     }
 }
 
 struct BinaryBuilder<'a> {
     prims: &'a [Prim],
     nodes: &'a mut Vec<BinaryNode>,
+    /// Scratch space for the SAH bins: bounds and triangle count.
+    bins: Vec<(Aabb, usize)>,
 }
 
 /// A chosen split: axis and the first bin of the right side, or a plain
 /// cut of the index range in the middle.
 enum Split {
-    Bin { axis: usize, bin: usize },
-    Median { axis: usize },
+    Bin {
+        axis: usize,
+        bin: usize,
+        bins: usize,
+    },
+    Median {
+        axis: usize,
+    },
 }
 
 impl BinaryBuilder<'_> {
@@ -170,7 +236,10 @@ impl BinaryBuilder<'_> {
         for &i in order.iter() {
             let p = &self.prims[i as usize];
             bounds.grow(&p.bounds);
-            centroids.grow_point(p.centroid);
+            centroids.grow(&Aabb {
+                min: p.centroid,
+                max: p.centroid,
+            });
         }
         let n = order.len();
         let index = self.nodes.len();
@@ -181,7 +250,8 @@ impl BinaryBuilder<'_> {
                 count: n,
             },
         });
-        if n == 1 {
+        // Two triangles are one pair test however they are split.
+        if n <= 2 {
             return index;
         }
 
@@ -209,20 +279,23 @@ impl BinaryBuilder<'_> {
         };
 
         let mid = match split {
-            Split::Bin { axis, bin } => {
-                let lo = centroids.min[axis];
-                let scale = BINS as f64 / (centroids.max[axis] - lo);
+            Split::Bin { axis, bin, bins } => {
+                let binning = Binning::new(&centroids, bins);
                 let prims = self.prims;
                 partition(order, |i| {
-                    bin_of(prims[i as usize].centroid[axis], lo, scale) < bin
+                    binning.of(&prims[i as usize].centroid)[axis] < bin
                 })
             }
             Split::Median { axis } => {
                 let prims = self.prims;
                 let mid = n / 2;
+                let coordinate = |i: u32| {
+                    let c = &prims[i as usize].centroid;
+                    [c[0][0], c[0][1], c[1][0]][axis]
+                };
                 order.select_nth_unstable_by(mid, |&a, &b| {
-                    let ca = prims[a as usize].centroid[axis];
-                    let cb = prims[b as usize].centroid[axis];
+                    let ca = coordinate(a);
+                    let cb = coordinate(b);
                     ca.total_cmp(&cb).then(a.cmp(&b))
                 });
                 mid
@@ -240,50 +313,57 @@ impl BinaryBuilder<'_> {
     /// (in triangle-test units, relative to the parent's area), or `None`
     /// if the centroids are all at one point.
     fn best_sah_split(
-        &self,
+        &mut self,
         order: &[u32],
         bounds: &Aabb,
         centroids: &Aabb,
     ) -> Option<(Split, f64)> {
         let parent_area = bounds.half_area();
+        let n = order.len();
+        let bins = n.clamp(2, BINS);
+        // Bin along all three axes in one pass over the triangles.
+        let extent = centroids.max() - centroids.min();
+        let binning = Binning::new(centroids, bins);
+        // Bin b of an axis is slot axis·bins + b of the scratch space.
+        let scratch = &mut self.bins;
+        scratch.clear();
+        scratch.resize(3 * bins, (Aabb::EMPTY, 0));
+        for &i in order {
+            let p = &self.prims[i as usize];
+            for (axis, b) in binning.of(&p.centroid).into_iter().enumerate() {
+                let slot = &mut scratch[axis * bins + b];
+                slot.0.grow(&p.bounds);
+                slot.1 += 1;
+            }
+        }
         let mut best: Option<(Split, f64)> = None;
         for axis in 0..3 {
-            let lo = centroids.min[axis];
-            let extent = centroids.max[axis] - lo;
-            if extent <= 0.0 {
+            if extent[axis] <= 0.0 {
                 continue;
             }
-            let scale = BINS as f64 / extent;
-            let mut bin_bounds = [Aabb::EMPTY; BINS];
-            let mut bin_counts = [0usize; BINS];
-            for &i in order {
-                let p = &self.prims[i as usize];
-                let b = bin_of(p.centroid[axis], lo, scale);
-                bin_bounds[b].grow(&p.bounds);
-                bin_counts[b] += 1;
-            }
+            let axis_bins = &scratch[axis * bins..(axis + 1) * bins];
             // Sweep from the right: area × count of bins b.. for each b.
             let mut right_cost = [0.0; BINS];
             let mut acc = Aabb::EMPTY;
             let mut count = 0;
-            for b in (1..BINS).rev() {
-                acc.grow(&bin_bounds[b]);
-                count += bin_counts[b];
+            for b in (1..bins).rev() {
+                acc.grow(&axis_bins[b].0);
+                count += axis_bins[b].1;
                 right_cost[b] = acc.half_area() * count as f64;
             }
             let mut acc = Aabb::EMPTY;
             let mut count = 0;
-            for b in 1..BINS {
-                acc.grow(&bin_bounds[b - 1]);
-                count += bin_counts[b - 1];
-                if count == 0 || count == order.len() {
+            for b in 1..bins {
+                acc.grow(&axis_bins[b - 1].0);
+                count += axis_bins[b - 1].1;
+                if count == 0 || count == n {
                     continue;
                 }
                 let cost = NODE_COST
                     + TRIANGLE_COST * (acc.half_area() * count as f64 + right_cost[b])
                         / parent_area.max(f64::MIN_POSITIVE);
                 if best.as_ref().is_none_or(|(_, c)| cost < *c) {
-                    best = Some((Split::Bin { axis, bin: b }, cost));
+                    best = Some((Split::Bin { axis, bin: b, bins }, cost));
                 }
             }
         }
@@ -291,14 +371,8 @@ impl BinaryBuilder<'_> {
     }
 }
 
-/// Bin of a centroid coordinate, clamped into range.
-#[inline]
-fn bin_of(c: f64, lo: f64, scale: f64) -> usize {
-    (((c - lo) * scale) as usize).min(BINS - 1)
-}
-
 fn longest_axis(b: &Aabb) -> usize {
-    let e = b.max - b.min;
+    let e = b.max() - b.min();
     if e.x >= e.y && e.x >= e.z {
         0
     } else if e.y >= e.z {
@@ -324,51 +398,71 @@ fn partition(order: &mut [u32], left: impl Fn(u32) -> bool) -> usize {
     i
 }
 
-/// Writes the wide node for binary node `b` and its subtree depth-first;
-/// returns its index in `out`.
-fn collapse(binary: &[BinaryNode], b: usize, out: &mut Vec<Node4>) -> u32 {
-    let index = out.len();
-    out.push(Node4::EMPTY);
+/// Turns the binary tree into the wide one.
+struct Collapser<'a> {
+    binary: &'a [BinaryNode],
+    /// Triangle indices in leaf order.
+    order: &'a [u32],
+    triangles: &'a [Triangle],
+    nodes: Vec<Node4>,
+    pairs: Vec<TrianglePair>,
+}
 
-    // Open the inner child of largest area until there are four children.
-    let mut children: Vec<usize> = match binary[b].kind {
-        BinaryKind::Inner { left, right } => vec![left, right],
-        BinaryKind::Leaf { .. } => vec![b],
-    };
-    while children.len() < 4 {
-        let candidate = children
-            .iter()
-            .enumerate()
-            .filter(|(_, &c)| matches!(binary[c].kind, BinaryKind::Inner { .. }))
-            .max_by(|(_, &x), (_, &y)| {
-                binary[x]
-                    .bounds
-                    .half_area()
-                    .total_cmp(&binary[y].bounds.half_area())
-            })
-            .map(|(slot, _)| slot);
-        let Some(slot) = candidate else { break };
-        let BinaryKind::Inner { left, right } = binary[children[slot]].kind else {
-            unreachable!("filtered to inner nodes")
-        };
-        children[slot] = left;
-        children.insert(slot + 1, right);
-    }
+impl Collapser<'_> {
+    /// Writes the wide node for binary node `b` and its subtree depth-first;
+    /// returns its index in `nodes`.
+    fn collapse(&mut self, b: usize) -> u32 {
+        let binary = self.binary;
+        let index = self.nodes.len();
+        self.nodes.push(Node4::EMPTY);
 
-    let mut node = Node4::EMPTY;
-    for (slot, &c) in children.iter().enumerate() {
-        let bounds = binary[c].bounds;
-        node.set_box(slot, &WideBox::outward(bounds.min, bounds.max));
-        node.children[slot] = match binary[c].kind {
-            BinaryKind::Leaf { start, count } => ChildRef::leaf(start as u32, count as u32),
-            BinaryKind::Inner { .. } => ChildRef::EMPTY, // filled below
+        // Open the inner child of largest area until there are four children.
+        let mut children: Vec<usize> = match binary[b].kind {
+            BinaryKind::Inner { left, right } => vec![left, right],
+            BinaryKind::Leaf { .. } => vec![b],
         };
-    }
-    for (slot, &c) in children.iter().enumerate() {
-        if matches!(binary[c].kind, BinaryKind::Inner { .. }) {
-            node.children[slot] = ChildRef::inner(collapse(binary, c, out));
+        while children.len() < 4 {
+            let candidate = children
+                .iter()
+                .enumerate()
+                .filter(|(_, &c)| matches!(binary[c].kind, BinaryKind::Inner { .. }))
+                .max_by(|(_, &x), (_, &y)| {
+                    binary[x]
+                        .bounds
+                        .half_area()
+                        .total_cmp(&binary[y].bounds.half_area())
+                })
+                .map(|(slot, _)| slot);
+            let Some(slot) = candidate else { break };
+            let BinaryKind::Inner { left, right } = binary[children[slot]].kind else {
+                unreachable!("filtered to inner nodes")
+            };
+            children[slot] = left;
+            children.insert(slot + 1, right);
         }
+
+        let mut node = Node4::EMPTY;
+        for (slot, &c) in children.iter().enumerate() {
+            let bounds = binary[c].bounds;
+            node.set_box(slot, &WideBox::outward(bounds.min(), bounds.max()));
+            node.children[slot] = match binary[c].kind {
+                BinaryKind::Leaf { start, count } => self.leaf(start, count),
+                BinaryKind::Inner { .. } => ChildRef::inner(self.collapse(c)),
+            };
+        }
+        self.nodes[index] = node;
+        index as u32
     }
-    out[index] = node;
-    index as u32
+
+    /// Stores the triangles `order[start..start + count]` as pairs (the last
+    /// one repeated when the count is odd) and returns the leaf's reference.
+    fn leaf(&mut self, start: usize, count: usize) -> ChildRef {
+        let first = self.pairs.len();
+        for two in self.order[start..start + count].chunks(2) {
+            let second = *two.last().expect("chunks are never empty");
+            self.pairs
+                .push(TrianglePair::new(self.triangles, two[0], second));
+        }
+        ChildRef::leaf(first as u32, (self.pairs.len() - first) as u32)
+    }
 }

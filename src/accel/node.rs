@@ -3,7 +3,7 @@
 
 use glam::DVec3;
 
-/// Reference to a child: an inner node, a leaf (range of leaf triangles) or
+/// Reference to a child: an inner node, a leaf (range of triangle pairs) or
 /// an empty slot.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(crate) struct ChildRef(pub(crate) u32);
@@ -11,7 +11,7 @@ pub(crate) struct ChildRef(pub(crate) u32);
 impl ChildRef {
     const LEAF_BIT: u32 = 1 << 31;
     const COUNT_SHIFT: u32 = 27;
-    /// First leaf triangle index must stay below this (27 bits).
+    /// First pair index must stay below this (27 bits).
     pub(crate) const MAX_START: u32 = 1 << Self::COUNT_SHIFT;
     /// An unused slot (its box is empty, so it is never entered).
     pub(crate) const EMPTY: Self = Self(u32::MAX);
@@ -21,7 +21,7 @@ impl ChildRef {
         Self(node)
     }
 
-    /// A leaf of 1..=16 triangles starting at `start`.
+    /// A leaf of 1..=16 triangle pairs starting at `start`.
     pub(crate) fn leaf(start: u32, count: u32) -> Self {
         debug_assert!(start < Self::MAX_START && (1..=16).contains(&count));
         Self(Self::LEAF_BIT | ((count - 1) << Self::COUNT_SHIFT) | start)
@@ -32,7 +32,7 @@ impl ChildRef {
         self.0 & Self::LEAF_BIT != 0
     }
 
-    /// Range of leaf triangles (only for leaves).
+    /// Range of triangle pairs (only for leaves).
     #[inline]
     pub(crate) fn leaf_range(self) -> std::ops::Range<usize> {
         let start = (self.0 & (Self::MAX_START - 1)) as usize;
@@ -77,11 +77,14 @@ pub(crate) fn f32_up(x: f64) -> f32 {
     }
 }
 
-/// A node with four child slots. `bounds[0..3]` are the minima along x, y,
-/// z of the four children, `bounds[3..6]` the maxima. Empty slots have an
-/// inverted box (min +∞, max −∞) that every ray misses.
+/// A node with four child slots. `bounds` holds, per axis, a row of the four
+/// children's minima then a row of their maxima: x min, x max, y min, y max,
+/// z min, z max. So the near row of an axis is `2·axis` or `2·axis + 1` by the
+/// sign of the ray direction, and the far row is the other one (index ^ 1).
+/// Empty slots have an inverted box (min +∞, max −∞) that every ray misses.
+/// Aligned to a cache line: one node is two whole lines.
 #[derive(Clone, Copy, Debug)]
-#[repr(C, align(16))]
+#[repr(C, align(64))]
 pub(crate) struct Node4 {
     pub(crate) bounds: [[f32; 4]; 6],
     pub(crate) children: [ChildRef; 4],
@@ -91,10 +94,10 @@ impl Node4 {
     pub(crate) const EMPTY: Self = Self {
         bounds: [
             [f32::INFINITY; 4],
-            [f32::INFINITY; 4],
+            [f32::NEG_INFINITY; 4],
             [f32::INFINITY; 4],
             [f32::NEG_INFINITY; 4],
-            [f32::NEG_INFINITY; 4],
+            [f32::INFINITY; 4],
             [f32::NEG_INFINITY; 4],
         ],
         children: [ChildRef::EMPTY; 4],
@@ -102,8 +105,8 @@ impl Node4 {
 
     pub(crate) fn set_box(&mut self, slot: usize, b: &WideBox) {
         for axis in 0..3 {
-            self.bounds[axis][slot] = b.min[axis];
-            self.bounds[axis + 3][slot] = b.max[axis];
+            self.bounds[2 * axis][slot] = b.min[axis];
+            self.bounds[2 * axis + 1][slot] = b.max[axis];
         }
     }
 }

@@ -6,135 +6,124 @@ use std::mem::MaybeUninit;
 
 use glam::DVec3;
 
-use super::node::{f32_down, f32_up, ChildRef, Node4};
-use super::triangle::{LeafTriangle, ShearedRay};
+use super::node::{ChildRef, Node4};
+use super::triangle::{PairRay, ShearedRay, TrianglePair};
+use crate::lanes::F4;
 
 /// Stack capacity. The build bounds the binary depth (SAH up to depth 40,
 /// then median halving, at most 27 more levels for 2^27 triangles); each
 /// wide level pushes at most 3 entries, so 3 × 67 + 4 < 256.
 const STACK: usize = 256;
 
-/// Relative widening of the far slab distance that absorbs the rounding of
-/// the f32 slab test: computed distances are within γ₄ = 4u/(1 − 4u) of the
-/// exact ones (u = 2⁻²⁴: one subtraction, the rounded reciprocal, one
-/// product), so far × (1 + 2γ₄) ≥ exact near whenever exact near ≤ exact
-/// far. Ize, "Robust BVH Ray Traversal", JCGT 2(2), 2013; 5 ulp ≥ 2γ₄.
-const FAR_SCALE: f32 = 1.0 + 5.0 * f32::EPSILON;
+/// Relative widening, 1 + 2⁻²⁰ (8 single-precision epsilons), of the far
+/// slab distances and of the distance limit. It absorbs the rounding of the
+/// f32 slab test: a computed near distance is at most (1 + u)³ times the
+/// exact one and a computed far distance at least (1 − u)³ · W times the
+/// exact one (u = 2⁻²⁴: the subtraction, the rounded reciprocal, the
+/// product), so computed near ≤ computed far whenever exact near ≤ exact
+/// far. Ize, "Robust BVH Ray Traversal", JCGT 2(2), 2013.
+const WIDEN: f64 = 1.0 + 1.0 / (1u64 << 20) as f64;
 
-/// Per-ray constants of the slab test.
+/// One f32 rounding step relative to the value (rounding to nearest moves a
+/// value by at most half a step), plus an absolute step far below any
+/// coordinate that matters: moving a coordinate by this much before rounding
+/// to f32 keeps the rounded value on the chosen side.
+const NUDGE_REL: f64 = f32::EPSILON as f64;
+const NUDGE_ABS: f64 = 1e-30;
+
+/// An f32 not below `x` (at most about two f32 steps above it), without
+/// branches: the nudge exceeds half a step, so rounding to nearest cannot
+/// fall back below `x`.
+#[inline(always)]
+fn f32_at_or_above(x: f64) -> f32 {
+    (x + (x.abs() * NUDGE_REL + NUDGE_ABS)).max(-f64::from(f32::MAX)) as f32
+}
+
+/// An f32 not above `x` (at most about two f32 steps below it).
+#[inline(always)]
+fn f32_at_or_below(x: f64) -> f32 {
+    (x - (x.abs() * NUDGE_REL + NUDGE_ABS)).min(f64::from(f32::MAX)) as f32
+}
+
+/// A distance limit in f32 not below `t · WIDEN` (+∞ stays +∞): what a
+/// computed near distance is compared with.
+#[inline(always)]
+fn widened_limit(t: f64) -> f32 {
+    (t * WIDEN) as f32
+}
+
+/// (`up`, `down`) for a non-negative direction component, (`down`, `up`)
+/// for a negative one, chosen with bit masks: the sign of a random direction
+/// is a branch no predictor can learn.
+#[inline(always)]
+fn by_sign(negative: bool, up: f32, down: f32) -> (f32, f32) {
+    let pick_down = u32::from(negative).wrapping_neg();
+    let (u, d) = (up.to_bits(), down.to_bits());
+    (
+        f32::from_bits((d & pick_down) | (u & !pick_down)),
+        f32::from_bits((u & pick_down) | (d & !pick_down)),
+    )
+}
+
+/// Per-ray constants of the slab test, splatted to four lanes.
 ///
 /// For each axis the near plane is the box minimum for a non-negative
 /// direction component and the maximum otherwise. The origin is rounded to
 /// f32 in the direction that can only move the near distance down and the
-/// far distance up, so the f32 test never rejects a box the f64 ray enters.
-struct BoxRay {
-    near_row: [usize; 3],
-    far_row: [usize; 3],
-    origin_near: [f32; 3],
-    origin_far: [f32; 3],
-    inv_dir: [f32; 3],
+/// far distance up, and the far reciprocal is widened by [`WIDEN`], so the
+/// f32 test never rejects a box the f64 ray enters.
+struct SlabRay {
+    /// Whether the direction component is negative (sign bit set), per axis.
+    negative: [bool; 3],
+    origin_near: [F4; 3],
+    origin_far: [F4; 3],
+    inv_near: [F4; 3],
+    inv_far: [F4; 3],
 }
 
-impl BoxRay {
+impl SlabRay {
+    #[inline(always)]
     fn new(origin: DVec3, direction: DVec3) -> Self {
-        let mut r = Self {
-            near_row: [0; 3],
-            far_row: [0; 3],
-            origin_near: [0.0; 3],
-            origin_far: [0.0; 3],
-            inv_dir: [0.0; 3],
-        };
-        for a in 0..3 {
+        let axis = |a: usize| {
             let d = direction[a];
             let o = origin[a];
-            // A finite reciprocal even for d = ±0 keeps (plane − origin) × inv
-            // free of 0 × ∞ = NaN; the sign of zero picks the near plane.
-            let inv = (1.0 / d) as f32;
-            let inv = if inv.is_finite() {
-                inv
-            } else {
-                f32::MAX.copysign(inv)
-            };
-            let positive = !d.is_sign_negative();
-            r.inv_dir[a] = inv;
-            if positive {
-                r.near_row[a] = a;
-                r.far_row[a] = a + 3;
-                r.origin_near[a] = f32_up(o);
-                r.origin_far[a] = f32_down(o);
-            } else {
-                r.near_row[a] = a + 3;
-                r.far_row[a] = a;
-                r.origin_near[a] = f32_down(o);
-                r.origin_far[a] = f32_up(o);
-            }
+            // 1/±0 = ±∞ becomes ±f32::MAX: finite, so (plane − origin) × inv is
+            // never 0 × ∞ = NaN, and the sign of zero still picks the near plane.
+            let q = 1.0 / d;
+            let clamp = |x: f64| (x as f32).clamp(-f32::MAX, f32::MAX);
+            let negative = d.is_sign_negative();
+            let (near, far) = by_sign(negative, f32_at_or_above(o), f32_at_or_below(o));
+            (negative, near, far, clamp(q), clamp(q * WIDEN))
+        };
+        let [x, y, z] = [axis(0), axis(1), axis(2)];
+        Self {
+            negative: [x.0, y.0, z.0],
+            origin_near: [F4::splat(x.1), F4::splat(y.1), F4::splat(z.1)],
+            origin_far: [F4::splat(x.2), F4::splat(y.2), F4::splat(z.2)],
+            inv_near: [F4::splat(x.3), F4::splat(y.3), F4::splat(z.3)],
+            inv_far: [F4::splat(x.4), F4::splat(y.4), F4::splat(z.4)],
         }
-        r
     }
 
     /// Entry distances of the four children and a bit mask of those whose
-    /// box the ray enters within [0, `t_max`].
-    #[inline]
-    fn test(&self, node: &Node4, t_max: f32) -> ([f32; 4], u32) {
-        #[cfg(target_arch = "x86_64")]
-        {
-            self.test_sse(node, t_max)
-        }
-        #[cfg(not(target_arch = "x86_64"))]
-        {
-            self.test_scalar(node, t_max)
-        }
-    }
-
-    #[cfg(target_arch = "x86_64")]
-    #[inline]
-    fn test_sse(&self, node: &Node4, t_max: f32) -> ([f32; 4], u32) {
-        use std::arch::x86_64::*;
-        // SAFETY: SSE2 is part of the x86_64 baseline; every load reads one
-        // [f32; 4] row of `node.bounds` (unaligned load, in bounds).
-        unsafe {
-            let row = |r: usize| _mm_loadu_ps(node.bounds[r].as_ptr());
-            let slab = |r: usize, o: f32, inv: f32| {
-                _mm_mul_ps(_mm_sub_ps(row(r), _mm_set1_ps(o)), _mm_set1_ps(inv))
-            };
-            let nx = slab(self.near_row[0], self.origin_near[0], self.inv_dir[0]);
-            let ny = slab(self.near_row[1], self.origin_near[1], self.inv_dir[1]);
-            let nz = slab(self.near_row[2], self.origin_near[2], self.inv_dir[2]);
-            let fx = slab(self.far_row[0], self.origin_far[0], self.inv_dir[0]);
-            let fy = slab(self.far_row[1], self.origin_far[1], self.inv_dir[1]);
-            let fz = slab(self.far_row[2], self.origin_far[2], self.inv_dir[2]);
-            let near = _mm_max_ps(_mm_max_ps(nx, ny), _mm_max_ps(nz, _mm_setzero_ps()));
-            let far = _mm_mul_ps(_mm_min_ps(_mm_min_ps(fx, fy), fz), _mm_set1_ps(FAR_SCALE));
-            let far = _mm_min_ps(far, _mm_set1_ps(t_max));
-            let mask = _mm_movemask_ps(_mm_cmple_ps(near, far)) as u32;
-            let mut out = [0.0f32; 4];
-            _mm_storeu_ps(out.as_mut_ptr(), near);
-            (out, mask)
-        }
-    }
-
-    /// Same test lane by lane (other architectures, and a cross-check).
-    #[cfg_attr(target_arch = "x86_64", allow(dead_code))]
-    fn test_scalar(&self, node: &Node4, t_max: f32) -> ([f32; 4], u32) {
-        let mut near_out = [0.0f32; 4];
-        let mut mask = 0;
-        for (lane, near_slot) in near_out.iter_mut().enumerate() {
-            let mut near = 0.0f32;
-            let mut far = f32::INFINITY;
-            for a in 0..3 {
-                let n =
-                    (node.bounds[self.near_row[a]][lane] - self.origin_near[a]) * self.inv_dir[a];
-                let f = (node.bounds[self.far_row[a]][lane] - self.origin_far[a]) * self.inv_dir[a];
-                near = if n > near { n } else { near };
-                far = if f < far { f } else { far };
-            }
-            let far = (far * FAR_SCALE).min(t_max);
-            *near_slot = near;
-            if near <= far {
-                mask |= 1 << lane;
-            }
-        }
-        (near_out, mask)
+    /// box the ray enters at a distance in [0, `limit`].
+    #[inline(always)]
+    fn test(&self, node: &Node4, limit: F4) -> (F4, u32) {
+        let slab = |a: usize| {
+            let n = usize::from(self.negative[a]);
+            let near_row = F4::load(&node.bounds[2 * a + n]);
+            let far_row = F4::load(&node.bounds[2 * a + 1 - n]);
+            (
+                near_row.sub(self.origin_near[a]).mul(self.inv_near[a]),
+                far_row.sub(self.origin_far[a]).mul(self.inv_far[a]),
+            )
+        };
+        let (nx, fx) = slab(0);
+        let (ny, fy) = slab(1);
+        let (nz, fz) = slab(2);
+        let near = nx.max(ny).max(nz.max(F4::splat(0.0)));
+        let far = fx.min(fy).min(fz.min(limit));
+        (near, near.le_mask(far))
     }
 }
 
@@ -147,77 +136,97 @@ impl Skip {
     pub(crate) const NONE: Self = Self(u32::MAX);
 }
 
-/// Closest hit: (t, leaf triangle position) with 0 < t < `t_max`.
+/// A deferred child and the distance at which the ray enters its box.
+#[derive(Clone, Copy)]
+struct Deferred {
+    child: ChildRef,
+    entry: f32,
+}
+
+/// Closest hit: (t, triangle index) with 0 < t < `t_max`.
 pub(crate) fn closest(
     nodes: &[Node4],
-    triangles: &[LeafTriangle],
+    pairs: &[TrianglePair],
     origin: DVec3,
     direction: DVec3,
     t_max: f64,
     skip: Skip,
-) -> Option<(f64, usize)> {
+) -> Option<(f64, u32)> {
     if nodes.is_empty() || t_max.is_nan() || t_max <= 0.0 {
         return None;
     }
-    let box_ray = BoxRay::new(origin, direction);
-    let tri_ray = ShearedRay::new(origin, direction);
+    let tri_ray = PairRay::new(&ShearedRay::new(origin, direction));
+    let slab_ray = SlabRay::new(origin, direction);
     let mut best_t = t_max;
-    let mut best_t32 = f32_up(best_t);
-    let mut best: Option<usize> = None;
+    let mut limit = widened_limit(best_t);
+    let mut best: Option<u32> = None;
 
     // Left uninitialized: zeroing 2 KiB per ray costs more than a shallow
     // traversal; only entries below `sp` are ever read.
-    let mut stack = [MaybeUninit::<(ChildRef, f32)>::uninit(); STACK];
+    let mut stack = [MaybeUninit::<Deferred>::uninit(); STACK];
     let mut sp = 0usize;
     let mut current = ChildRef::inner(0);
     loop {
         if current.is_leaf() {
-            for k in current.leaf_range() {
-                let tri = &triangles[k];
-                if tri.surface == skip.0 {
-                    continue;
-                }
-                if let Some(t) = tri.intersect(&tri_ray, best_t) {
+            for pair in &pairs[current.leaf_range()] {
+                if let Some((t, lane)) = pair.intersect(&tri_ray, best_t, skip.0) {
                     best_t = t;
-                    best_t32 = f32_up(t);
-                    best = Some(k);
+                    limit = widened_limit(t);
+                    best = Some(pair.index[lane]);
                 }
             }
         } else {
             let node = &nodes[current.0 as usize];
-            let (near, mask) = box_ray.test(node, best_t32);
-            match mask.count_ones() {
-                0 => {}
-                1 => {
-                    current = node.children[mask.trailing_zeros() as usize];
+            let (near, mask) = slab_ray.test(node, F4::splat(limit));
+            if mask != 0 {
+                let near = near.to_array();
+                let first = mask.trailing_zeros() as usize;
+                let rest = mask & (mask - 1);
+                if rest == 0 {
+                    current = node.children[first];
                     continue;
                 }
-                _ => {
-                    // Sort the entered children by entry distance, push all
-                    // but the nearest (farthest first) and descend into it.
-                    let mut hits = [(0.0f32, ChildRef::EMPTY); 4];
-                    let mut n = 0;
-                    let mut m = mask;
-                    while m != 0 {
-                        let lane = m.trailing_zeros() as usize;
-                        m &= m - 1;
-                        let entry = (near[lane], node.children[lane]);
-                        // Insertion keeps equal distances in lane order.
-                        let mut j = n;
-                        while j > 0 && hits[j - 1].0 > entry.0 {
-                            hits[j] = hits[j - 1];
-                            j -= 1;
-                        }
-                        hits[j] = entry;
-                        n += 1;
-                    }
-                    for k in (1..n).rev() {
-                        stack[sp] = MaybeUninit::new((hits[k].1, hits[k].0));
-                        sp += 1;
-                    }
-                    current = hits[0].1;
+                let second = rest.trailing_zeros() as usize;
+                if rest & (rest - 1) == 0 {
+                    // Two children: defer the farther one.
+                    let (go, defer) = if near[second] < near[first] {
+                        (second, first)
+                    } else {
+                        (first, second)
+                    };
+                    stack[sp] = MaybeUninit::new(Deferred {
+                        child: node.children[defer],
+                        entry: near[defer],
+                    });
+                    sp += 1;
+                    current = node.children[go];
                     continue;
                 }
+                // Three or four: sort by entry distance (equal distances keep
+                // lane order), defer all but the nearest, farthest first.
+                let mut order = [0usize; 4];
+                let mut n = 0;
+                let mut m = mask;
+                while m != 0 {
+                    let lane = m.trailing_zeros() as usize;
+                    m &= m - 1;
+                    let mut j = n;
+                    while j > 0 && near[order[j - 1]] > near[lane] {
+                        order[j] = order[j - 1];
+                        j -= 1;
+                    }
+                    order[j] = lane;
+                    n += 1;
+                }
+                for &lane in order[1..n].iter().rev() {
+                    stack[sp] = MaybeUninit::new(Deferred {
+                        child: node.children[lane],
+                        entry: near[lane],
+                    });
+                    sp += 1;
+                }
+                current = node.children[order[0]];
+                continue;
             }
         }
         // Pop the next child still nearer than the best hit.
@@ -226,10 +235,10 @@ pub(crate) fn closest(
                 return best.map(|k| (best_t, k));
             }
             sp -= 1;
-            // SAFETY: entries 0..sp were written by the push above.
-            let (child, entry) = unsafe { stack[sp].assume_init() };
-            if entry <= best_t32 {
-                current = child;
+            // SAFETY: entries 0..sp were written by the pushes above.
+            let deferred = unsafe { stack[sp].assume_init() };
+            if deferred.entry <= limit {
+                current = deferred.child;
                 break;
             }
         }
@@ -239,7 +248,7 @@ pub(crate) fn closest(
 /// Whether any triangle is hit with 0 < t < `t_max`.
 pub(crate) fn any(
     nodes: &[Node4],
-    triangles: &[LeafTriangle],
+    pairs: &[TrianglePair],
     origin: DVec3,
     direction: DVec3,
     t_max: f64,
@@ -248,23 +257,22 @@ pub(crate) fn any(
     if nodes.is_empty() || t_max.is_nan() || t_max <= 0.0 {
         return false;
     }
-    let box_ray = BoxRay::new(origin, direction);
-    let tri_ray = ShearedRay::new(origin, direction);
-    let t_max32 = f32_up(t_max);
+    let tri_ray = PairRay::new(&ShearedRay::new(origin, direction));
+    let slab_ray = SlabRay::new(origin, direction);
+    let limit = F4::splat(widened_limit(t_max));
     let mut stack = [MaybeUninit::<ChildRef>::uninit(); STACK];
     let mut sp = 0usize;
     let mut current = ChildRef::inner(0);
     loop {
         if current.is_leaf() {
-            for k in current.leaf_range() {
-                let tri = &triangles[k];
-                if tri.surface != skip.0 && tri.intersect(&tri_ray, t_max).is_some() {
+            for pair in &pairs[current.leaf_range()] {
+                if pair.intersect(&tri_ray, t_max, skip.0).is_some() {
                     return true;
                 }
             }
         } else {
             let node = &nodes[current.0 as usize];
-            let (_, mask) = box_ray.test(node, t_max32);
+            let (_, mask) = slab_ray.test(node, limit);
             if mask != 0 {
                 let mut m = mask;
                 let first = m.trailing_zeros() as usize;
@@ -284,5 +292,35 @@ pub(crate) fn any(
         sp -= 1;
         // SAFETY: entries 0..sp were written by the push above.
         current = unsafe { stack[sp].assume_init() };
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rounded_coordinates_stay_on_their_side() {
+        // Values near f32 steps, signs, zero, tiny and huge magnitudes.
+        let mut values = vec![0.0, -0.0, 1e-300, -1e-300, 1e300, -1e300, 3.0e38, -3.0e38];
+        for k in 0..2000 {
+            let x = (k as f64 * 0.7310585786).sin() * 10f64.powi(k % 13 - 6);
+            values.extend([x, f64::from(x as f32), f64::from(x as f32).next_up()]);
+        }
+        for x in values {
+            let up = f32_at_or_above(x);
+            let down = f32_at_or_below(x);
+            assert!(
+                f64::from(up) >= x && f64::from(down) <= x,
+                "{x}: {down} {up}"
+            );
+            // Never more than a few f32 steps away (for normal magnitudes).
+            if (1e-30..1e30).contains(&x.abs()) {
+                assert!(f64::from(up) - x <= 3.0 * f64::from(f32::EPSILON) * x.abs());
+                assert!(x - f64::from(down) <= 3.0 * f64::from(f32::EPSILON) * x.abs());
+            }
+        }
+        assert!(f64::from(widened_limit(7.25)) >= 7.25 * (1.0 + 7.0 * f64::from(f32::EPSILON)));
+        assert_eq!(widened_limit(f64::INFINITY), f32::INFINITY);
     }
 }

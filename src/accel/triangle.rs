@@ -7,18 +7,42 @@
 //! exactly the negated value (same products, swapped operands), so a ray
 //! through a shared edge is accepted by at least one of the two triangles:
 //! no gaps between adjacent triangles, whatever the rounding.
+//!
+//! The axis permutation of the shear depends on the ray only: the test
+//! reads each vertex coordinate through the ray's axis indices (plain
+//! indexed loads, no branches on the permutation). Leaves store triangles in
+//! pairs, coordinates interleaved, so two triangles are tested with the same
+//! instructions in two f64 lanes; each lane computes exactly what the scalar
+//! test computes (same operations in the same order).
 
 use glam::DVec3;
+
+use crate::lanes::F2;
+use crate::room::Triangle;
+
+/// A coordinate axis; as an index it is known to be below 3.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[repr(usize)]
+pub(crate) enum Axis {
+    X = 0,
+    Y = 1,
+    Z = 2,
+}
+
+impl Axis {
+    const ALL: [Self; 3] = [Self::X, Self::Y, Self::Z];
+}
 
 /// Per-ray constants of the watertight test.
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct ShearedRay {
+    /// The origin's coordinates in the order (kx, ky, kz).
     origin: [f64; 3],
-    /// Axis of the largest direction component (the new Z) and the other two,
-    /// swapped when that component is negative to keep the winding.
-    kx: usize,
-    ky: usize,
-    kz: usize,
+    /// The axis of the largest direction component (the new Z) and the other
+    /// two, swapped when that component is negative to keep the winding.
+    kx: Axis,
+    ky: Axis,
+    kz: Axis,
     /// Shear constants Sx = dx/dz, Sy = dy/dz, Sz = 1/dz.
     sx: f64,
     sy: f64,
@@ -30,6 +54,8 @@ impl ShearedRay {
     pub(crate) fn new(origin: DVec3, direction: DVec3) -> Self {
         let d = direction.to_array();
         let a = direction.abs();
+        // The axis of the largest component becomes z; kx, ky follow it
+        // cyclically, swapped when that component is negative to keep the winding.
         let kz = if a.x >= a.y && a.x >= a.z {
             0
         } else if a.y >= a.z {
@@ -42,11 +68,13 @@ impl ShearedRay {
         if d[kz] < 0.0 {
             std::mem::swap(&mut kx, &mut ky);
         }
+        let o = origin.to_array();
+        debug_assert!(kx < 3 && ky < 3 && kz < 3);
         Self {
-            origin: origin.to_array(),
-            kx,
-            ky,
-            kz,
+            origin: [o[kx], o[ky], o[kz]],
+            kx: Axis::ALL[kx],
+            ky: Axis::ALL[ky],
+            kz: Axis::ALL[kz],
             sx: d[kx] / d[kz],
             sy: d[ky] / d[kz],
             sz: 1.0 / d[kz],
@@ -54,54 +82,117 @@ impl ShearedRay {
     }
 }
 
-/// A triangle as stored in the leaves: the original corners (never
-/// precomputed edges, which would break watertightness), its index in the
-/// caller's slice and its surface.
-#[derive(Clone, Copy, Debug)]
-pub(crate) struct LeafTriangle {
-    pub(crate) vertices: [[f64; 3]; 3],
-    pub(crate) index: u32,
-    pub(crate) surface: u32,
+/// Per-ray constants of the pair test, splatted to both lanes.
+#[derive(Clone, Copy)]
+pub(crate) struct PairRay {
+    kx: Axis,
+    ky: Axis,
+    kz: Axis,
+    origin: [F2; 3],
+    sx: F2,
+    sy: F2,
+    sz: F2,
 }
 
-impl LeafTriangle {
-    /// Ray parameter t of the hit if 0 < t < `t_max`. Edge and vertex hits
-    /// count (edge functions equal to zero are accepted); a ray in the plane
-    /// of the triangle (determinant zero) misses.
-    #[inline]
-    pub(crate) fn intersect(&self, ray: &ShearedRay, t_max: f64) -> Option<f64> {
-        let o = ray.origin;
-        let [p0, p1, p2] = self.vertices;
-        let a = [p0[0] - o[0], p0[1] - o[1], p0[2] - o[2]];
-        let b = [p1[0] - o[0], p1[1] - o[1], p1[2] - o[2]];
-        let c = [p2[0] - o[0], p2[1] - o[1], p2[2] - o[2]];
-        let (kx, ky, kz) = (ray.kx, ray.ky, ray.kz);
+impl PairRay {
+    #[inline(always)]
+    pub(crate) fn new(ray: &ShearedRay) -> Self {
+        Self {
+            kx: ray.kx,
+            ky: ray.ky,
+            kz: ray.kz,
+            origin: ray.origin.map(F2::splat),
+            sx: F2::splat(ray.sx),
+            sy: F2::splat(ray.sy),
+            sz: F2::splat(ray.sz),
+        }
+    }
+}
 
-        // Shear and scale the vertices into ray space (Woop et al. 2013, fig. 6).
-        let ax = a[kx] - ray.sx * a[kz];
-        let ay = a[ky] - ray.sy * a[kz];
-        let bx = b[kx] - ray.sx * b[kz];
-        let by = b[ky] - ray.sy * b[kz];
-        let cx = c[kx] - ray.sx * c[kz];
-        let cy = c[ky] - ray.sy * c[kz];
+/// Two triangles as stored in the leaves, coordinates interleaved by lane:
+/// `vertices[corner][axis]` holds that coordinate of both. The original
+/// corners, never precomputed edges (which would break watertightness). A
+/// leaf with an odd count repeats its last triangle in lane 1, which never
+/// counts: a later lane must be strictly nearer.
+#[derive(Clone, Copy, Debug)]
+#[repr(C, align(16))]
+pub(crate) struct TrianglePair {
+    vertices: [[[f64; 2]; 3]; 3],
+    /// Index of each lane's triangle in the caller's slice.
+    pub(crate) index: [u32; 2],
+    /// Surface of each lane's triangle.
+    surface: [u32; 2],
+}
 
-        // Scaled barycentric coordinates: one 2D edge function per edge.
-        let u = cx * by - cy * bx;
-        let v = ax * cy - ay * cx;
-        let w = bx * ay - by * ax;
-        if (u < 0.0 || v < 0.0 || w < 0.0) && (u > 0.0 || v > 0.0 || w > 0.0) {
+impl TrianglePair {
+    /// The pair of triangles `first` and `second` (indices into `triangles`).
+    pub(crate) fn new(triangles: &[Triangle], first: u32, second: u32) -> Self {
+        let [a, b] = [first, second].map(|i| &triangles[i as usize]);
+        Self {
+            vertices: std::array::from_fn(|corner| {
+                std::array::from_fn(|axis| [a.vertices[corner][axis], b.vertices[corner][axis]])
+            }),
+            index: [first, second],
+            surface: [a.surface, b.surface],
+        }
+    }
+
+    /// The nearer hit of the two triangles with 0 < t < `t_max`, as (t,
+    /// lane), skipping triangles of surface `skip`; lane 0 wins ties. Edge
+    /// and vertex hits count (edge functions equal to zero are accepted); a
+    /// ray in the plane of a triangle (determinant zero) misses it.
+    #[inline(always)]
+    pub(crate) fn intersect(&self, ray: &PairRay, t_max: f64, skip: u32) -> Option<(f64, usize)> {
+        let corner = |c: usize| {
+            let v = &self.vertices[c];
+            (
+                F2::load(&v[ray.kx as usize]).sub(ray.origin[0]),
+                F2::load(&v[ray.ky as usize]).sub(ray.origin[1]),
+                F2::load(&v[ray.kz as usize]).sub(ray.origin[2]),
+            )
+        };
+        // Vertices relative to the origin, then sheared and scaled into ray
+        // space (Woop et al. 2013, fig. 6).
+        let (a_x, a_y, a_z) = corner(0);
+        let (b_x, b_y, b_z) = corner(1);
+        let (c_x, c_y, c_z) = corner(2);
+        let ax = a_x.sub(ray.sx.mul(a_z));
+        let ay = a_y.sub(ray.sy.mul(a_z));
+        let bx = b_x.sub(ray.sx.mul(b_z));
+        let by = b_y.sub(ray.sy.mul(b_z));
+        let cx = c_x.sub(ray.sx.mul(c_z));
+        let cy = c_y.sub(ray.sy.mul(c_z));
+
+        // Scaled barycentric coordinates: one 2D edge function per edge; a
+        // lane misses when they have both signs.
+        let u = cx.mul(by).sub(cy.mul(bx));
+        let v = ax.mul(cy).sub(ay.mul(cx));
+        let w = bx.mul(ay).sub(by.mul(ax));
+        let zero = F2::splat(0.0);
+        let negative = u.lt_mask(zero) | v.lt_mask(zero) | w.lt_mask(zero);
+        let positive = zero.lt_mask(u) | zero.lt_mask(v) | zero.lt_mask(w);
+        let skipped =
+            u32::from(self.surface[0] == skip) | (u32::from(self.surface[1] == skip) << 1);
+        let mut lanes = !(negative & positive) & !skipped & 0b11;
+        if lanes == 0 {
             return None;
         }
-        let det = u + v + w;
-        if det == 0.0 {
-            return None;
-        }
+        let det = u.add(v).add(w);
+        lanes &= det.ne_mask(zero);
 
         // Scaled hit distance, then the one division.
-        let az = ray.sz * a[kz];
-        let bz = ray.sz * b[kz];
-        let cz = ray.sz * c[kz];
-        let t = (u * az + v * bz + w * cz) / det;
-        (t > 0.0 && t < t_max).then_some(t)
+        let az = ray.sz.mul(a_z);
+        let bz = ray.sz.mul(b_z);
+        let cz = ray.sz.mul(c_z);
+        let t = u.mul(az).add(v.mul(bz)).add(w.mul(cz)).div(det);
+        lanes &= zero.lt_mask(t) & t.lt_mask(F2::splat(t_max));
+        if lanes == 0 {
+            return None;
+        }
+        // Lane 1 wins when lane 0 misses or is farther (bit operations, not
+        // branches: which lane hits is random).
+        let [t0, t1] = t.to_array();
+        let lane = ((lanes >> 1) & ((!lanes & 1) | u32::from(t1 < t0))) as usize;
+        Some((t.to_array()[lane], lane))
     }
 }

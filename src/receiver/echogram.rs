@@ -68,9 +68,129 @@ impl Echogram {
     }
 }
 
+/// Arrivals recorded by one chunk of rays, in the order they happened, for
+/// several echograms of the same shape; added to them later with
+/// [`ArrivalLog::merge_into`]. Most bins of a chunk stay empty, so keeping
+/// the arrivals is far cheaper than zeroing, filling and merging a full
+/// echogram per chunk.
+#[derive(Clone, Debug, Default)]
+pub struct ArrivalLog {
+    arrivals: Vec<Arrival>,
+}
+
+#[derive(Clone, Copy, Debug)]
+struct Arrival {
+    /// Which echogram (index into the slice given to `merge_into`).
+    echogram: u32,
+    bin: u32,
+    fluence: Bands,
+    lateral_cos_sq: f64,
+}
+
+impl ArrivalLog {
+    /// An empty log.
+    #[must_use]
+    pub fn new() -> Self {
+        Self::default()
+    }
+
+    /// Records what [`Echogram::add`] would add to echogram `echogram`, whose
+    /// shape is `bins` bins of `bin_s` seconds: fluence `fluence` (J/m²)
+    /// arriving at `time_s` with lateral weight `lateral_cos_sq`; arrivals
+    /// past the last bin are dropped.
+    #[inline]
+    pub fn add(
+        &mut self,
+        echogram: usize,
+        bins: usize,
+        bin_s: f64,
+        time_s: f64,
+        fluence: Bands,
+        lateral_cos_sq: f64,
+    ) {
+        let bin = (time_s / bin_s) as usize;
+        if bin < bins {
+            debug_assert!(self.arrivals.len() < u32::MAX as usize);
+            self.arrivals.push(Arrival {
+                echogram: echogram as u32,
+                bin: bin as u32,
+                fluence,
+                lateral_cos_sq,
+            });
+        }
+    }
+
+    /// Number of arrivals recorded.
+    #[must_use]
+    pub fn len(&self) -> usize {
+        self.arrivals.len()
+    }
+
+    /// Whether no arrival was recorded.
+    #[must_use]
+    pub fn is_empty(&self) -> bool {
+        self.arrivals.is_empty()
+    }
+
+    /// Adds the arrivals to `echograms`, bit for bit as if they had been
+    /// added in order with [`Echogram::add`] to zeroed echograms that were
+    /// then [merged](Echogram::merge) into `echograms`: each bin's arrivals
+    /// are summed in recording order first, then added to the bin (bins
+    /// without arrivals would have added +0, which changes nothing).
+    pub fn merge_into(self, echograms: &mut [Echogram]) {
+        // (echogram, bin) then recording position: sorting these small keys
+        // orders the arrivals like a stable sort by (echogram, bin).
+        let mut order: Vec<(u64, u32)> = self
+            .arrivals
+            .iter()
+            .enumerate()
+            .map(|(i, a)| ((u64::from(a.echogram) << 32) | u64::from(a.bin), i as u32))
+            .collect();
+        order.sort_unstable();
+        for run in order.chunk_by(|a, b| a.0 == b.0) {
+            let mut energy = Bands::ZERO;
+            let mut lateral = Bands::ZERO;
+            for &(_, i) in run {
+                let a = &self.arrivals[i as usize];
+                energy += a.fluence;
+                lateral += a.fluence * a.lateral_cos_sq;
+            }
+            let first = &self.arrivals[run[0].1 as usize];
+            let target = &mut echograms[first.echogram as usize];
+            target.energy[first.bin as usize] += energy;
+            target.lateral[first.bin as usize] += lateral;
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn arrival_log_merges_like_dense_echograms() {
+        // Exactness (our contract): the same bits as filling zeroed echograms
+        // and merging them. Awkward values make any change of summation order show.
+        let mut dense = vec![Echogram::new(20, 0.01); 3];
+        let mut total_a = vec![Echogram::new(20, 0.01); 3];
+        total_a[1].add(0.055, Bands::splat(0.3), 0.5);
+        let mut total_b = total_a.clone();
+        let mut log = ArrivalLog::new();
+        let mut rng = crate::random::Stream::new(5, 0);
+        for _ in 0..2000 {
+            let e = (rng.next_u64() % 3) as usize;
+            let t = rng.uniform() * 0.21;
+            let f = Bands(std::array::from_fn(|_| rng.uniform() / 3.0));
+            let c = rng.uniform();
+            dense[e].add(t, f, c);
+            log.add(e, 20, 0.01, t, f, c);
+        }
+        for (t, d) in total_a.iter_mut().zip(&dense) {
+            t.merge(d);
+        }
+        log.merge_into(&mut total_b);
+        assert_eq!(total_a, total_b);
+    }
 
     #[test]
     fn add_bins_by_time_and_drops_late_arrivals() {

@@ -10,5 +10,5 @@
 mod echogram;
 mod sphere;
 
-pub use echogram::Echogram;
-pub use sphere::{default_radius_m, lateral_axis, DetectionSphere, TARGET_HITS_PER_BIN};
+pub use echogram::{ArrivalLog, Echogram};
+pub use sphere::{default_radius_m, lateral_axis, DetectionSphere, SphereSet, TARGET_HITS_PER_BIN};

@@ -4,6 +4,8 @@ use std::f64::consts::PI;
 
 use glam::DVec3;
 
+use crate::lanes::F4;
+
 /// A detection sphere around a receiver position.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct DetectionSphere {
@@ -44,6 +46,120 @@ impl DetectionSphere {
         let enter = (t_closest - half).max(0.0);
         let leave = (t_closest + half).min(length_m);
         (leave > enter).then_some((0.5 * (enter + leave), leave - enter))
+    }
+}
+
+/// Detection spheres laid out four by four in single precision, so that one
+/// segment is screened against four spheres with the same instructions. The
+/// screen is conservative: it may pass a sphere the segment misses, never
+/// the reverse; the spheres that pass get the exact f64
+/// [`DetectionSphere::chord`], so results are exactly those of `chord`.
+#[derive(Clone, Debug)]
+pub struct SphereSet {
+    spheres: Vec<DetectionSphere>,
+    quads: Vec<SphereQuad>,
+    /// Largest coordinate magnitude of any centre or segment origin, m.
+    reach_m: f64,
+}
+
+/// Centres of four spheres in f32, and the squared distance from the centre
+/// below which a line passes the screen (squared radius plus the screen's
+/// margin, rounded up), by lane. Missing spheres have a limit of −∞, which
+/// no line comes within.
+#[derive(Clone, Copy, Debug)]
+#[repr(C, align(16))]
+struct SphereQuad {
+    centre: [[f32; 4]; 3],
+    limit_m2: [f32; 4],
+}
+
+/// Bound on the f32 rounding of the screen, relative to S² (S the largest
+/// coordinate magnitude involved, m): with v = centre − origin and a unit
+/// direction d, the computed |v|² − (v·d)² is within about 304·u·S² of the
+/// exact one (u = 2⁻²⁴: the rounding of the centre, origin and direction to
+/// f32 moves each component of v by at most 4uS and of d by u; |v|² and
+/// (v·d)² are then off by at most 7|v|·4uS + 13u|v|², |v| ≤ 2√3·S).
+/// 2⁻¹⁵ = 512u leaves room for the rounding of the bound itself.
+const SCREEN_MARGIN_REL: f64 = 1.0 / 32768.0;
+
+impl SphereSet {
+    /// The set of `spheres`, in that order, for segments whose origins have
+    /// no coordinate larger in magnitude than `reach_m` (for a room: the
+    /// largest coordinate magnitude of its vertices and sources).
+    #[must_use]
+    pub fn new(spheres: &[DetectionSphere], reach_m: f64) -> Self {
+        let reach_m = spheres
+            .iter()
+            .map(|s| s.centre.abs().max_element())
+            .fold(reach_m.max(1.0), f64::max);
+        let margin_m2 = SCREEN_MARGIN_REL * reach_m * reach_m;
+        let quads = spheres
+            .chunks(4)
+            .map(|four| {
+                let lane = |k: usize, f: &dyn Fn(&DetectionSphere) -> f32, empty: f32| {
+                    four.get(k).map_or(empty, f)
+                };
+                let row = |f: &dyn Fn(&DetectionSphere) -> f32, empty: f32| {
+                    [0, 1, 2, 3].map(|k| lane(k, f, empty))
+                };
+                SphereQuad {
+                    centre: [
+                        row(&|s| s.centre.x as f32, 0.0),
+                        row(&|s| s.centre.y as f32, 0.0),
+                        row(&|s| s.centre.z as f32, 0.0),
+                    ],
+                    limit_m2: row(
+                        &|s| ((s.radius_m * s.radius_m + margin_m2) as f32).next_up(),
+                        f32::NEG_INFINITY,
+                    ),
+                }
+            })
+            .collect();
+        Self {
+            spheres: spheres.to_vec(),
+            quads,
+            reach_m,
+        }
+    }
+
+    /// The spheres, in order.
+    #[must_use]
+    pub fn spheres(&self) -> &[DetectionSphere] {
+        &self.spheres
+    }
+
+    /// Calls `crossing(k, sphere, mid_m, chord_m)` for every sphere `k` that
+    /// the segment `origin + t·direction`, t ∈ [0, `length_m`], crosses (unit
+    /// `direction`, origin within the reach given to [`SphereSet::new`]), in
+    /// index order, with what [`DetectionSphere::chord`] returns for it.
+    #[inline]
+    pub fn for_each_crossing(
+        &self,
+        origin: DVec3,
+        direction: DVec3,
+        length_m: f64,
+        mut crossing: impl FnMut(usize, &DetectionSphere, f64, f64),
+    ) {
+        debug_assert!((direction.length_squared() - 1.0).abs() < 1e-9);
+        debug_assert!(origin.abs().max_element() <= self.reach_m);
+        let o = [origin.x, origin.y, origin.z].map(|c| F4::splat(c as f32));
+        let d = [direction.x, direction.y, direction.z].map(|c| F4::splat(c as f32));
+        for (q, quad) in self.quads.iter().enumerate() {
+            // Squared distance from each centre to the line, in f32.
+            let v = [0, 1, 2].map(|a| F4::load(&quad.centre[a]).sub(o[a]));
+            let along = v[0].mul(d[0]).add(v[1].mul(d[1])).add(v[2].mul(d[2]));
+            let length_sq = v[0].mul(v[0]).add(v[1].mul(v[1])).add(v[2].mul(v[2]));
+            let miss_sq = length_sq.sub(along.mul(along));
+            let mut near = miss_sq.lt_mask(F4::load(&quad.limit_m2));
+            while near != 0 {
+                let k = 4 * q + near.trailing_zeros() as usize;
+                near &= near - 1;
+                let sphere = &self.spheres[k];
+                if let Some((mid_m, chord_m)) = sphere.chord(origin, direction, length_m) {
+                    crossing(k, sphere, mid_m, chord_m);
+                }
+            }
+        }
     }
 }
 
@@ -134,6 +250,59 @@ mod tests {
         let expected = 1.0 / (4.0 * std::f64::consts::PI * 100.0);
         // About 1000 hits: relative standard error ≈ 1/√1000 · 0.5 ≈ 1.6 %; allow 5 %.
         assert_relative_eq!(sum, expected, max_relative = 0.05);
+    }
+
+    #[test]
+    fn sphere_set_finds_what_chord_finds() {
+        // Our contract: the f32 screen never drops a crossing that `chord`
+        // finds (five spheres: a full quad and a padded one). Lines that
+        // graze the spheres, the screen's hard case, come in the second half.
+        let mut rng = Stream::new(9, 0);
+        let unit = |rng: &mut Stream| {
+            let z = 1.0 - 2.0 * rng.uniform();
+            let phi = std::f64::consts::TAU * rng.uniform();
+            let r = (1.0 - z * z).sqrt();
+            DVec3::new(r * phi.cos(), r * phi.sin(), z)
+        };
+        // Far from the origin of coordinates, where f32 rounds coarsely.
+        let base = DVec3::new(37.0, -24.0, 11.0);
+        let spheres: Vec<DetectionSphere> = (0..5)
+            .map(|k| {
+                let c = base + DVec3::new(rng.uniform(), rng.uniform(), rng.uniform()) * 6.0;
+                DetectionSphere::new(c, [0.1, 0.3, 1.0, 0.05, 0.6][k])
+            })
+            .collect();
+        let set = SphereSet::new(&spheres, 200.0);
+        let mut found = 0;
+        for i in 0..40_000 {
+            let (o, d, len) = if i < 20_000 {
+                let o = base + DVec3::new(rng.uniform(), rng.uniform(), rng.uniform()) * 6.0;
+                (o, unit(&mut rng), 4.0 * rng.uniform())
+            } else {
+                // A line passing the centre of sphere k at 1 ∓ 1e-9 of its
+                // radius, from up to 60 m away.
+                let s = &spheres[i % 5];
+                let d = unit(&mut rng);
+                let side = d.any_orthonormal_vector();
+                let miss = s.radius_m * (1.0 + (rng.uniform() - 0.5) * 2e-9);
+                let back = 60.0 * rng.uniform();
+                let o = s.centre + side * miss - d * back;
+                (o, d, back + 1.0)
+            };
+            let mut got = Vec::new();
+            set.for_each_crossing(o, d, len, |k, _, mid, chord| got.push((k, mid, chord)));
+            let want: Vec<(usize, f64, f64)> = spheres
+                .iter()
+                .enumerate()
+                .filter_map(|(k, s)| s.chord(o, d, len).map(|(m, c)| (k, m, c)))
+                .collect();
+            assert_eq!(got, want);
+            found += got.len();
+        }
+        assert!(
+            found > 1000,
+            "only {found} crossings: the test exercises too little"
+        );
     }
 
     #[test]

@@ -8,7 +8,7 @@ use crate::bands::Bands;
 use crate::geometry::Frame;
 use crate::law::ReflectionLaw;
 use crate::random::Stream;
-use crate::receiver::{DetectionSphere, Echogram};
+use crate::receiver::{ArrivalLog, SphereSet};
 
 /// Distance a reflected ray starts off the wall along the normal, m
 /// (common practice, no source: keeps the next query from finding the same wall).
@@ -17,15 +17,11 @@ const SURFACE_OFFSET_M: f64 = 1e-7;
 /// Everything the rays of one run share, read-only.
 pub(super) struct Scene<'a> {
     pub bvh: &'a Bvh,
-    /// Unit normal per triangle (either side; turned toward the ray at each hit).
-    pub normals: Vec<DVec3>,
-    /// Law index per triangle.
-    pub triangle_law: Vec<u32>,
-    /// Extrusion axis of the surface's diffuser profile per triangle, if any:
-    /// the local frame's +X then runs along it (what 1D polar data need).
-    pub triangle_axis: Vec<Option<DVec3>>,
+    /// Reflection data per triangle.
+    pub shading: Vec<TriangleShading>,
     pub laws: Vec<Box<dyn ReflectionLaw>>,
-    pub bands: usize,
+    /// The bands this pass carries (the others keep weight 0).
+    pub group: Vec<usize>,
     pub seed: u64,
     /// Stream index of ray 0 ([`super::TraceOptions::first_ray`]).
     pub first_ray: u64,
@@ -34,16 +30,59 @@ pub(super) struct Scene<'a> {
     pub start_weight: Bands,
     pub max_path_m: f64,
     pub speed_m_s: f64,
+    /// Echogram shape: number of bins and bin width, s.
+    pub bins: usize,
+    pub bin_s: f64,
     /// Air energy attenuation per band, 1/m.
     pub air_per_m: Bands,
     /// Smallest of `air_per_m` over the used bands, 1/m.
     pub air_min_per_m: f64,
     pub has_air: bool,
     pub roulette: Option<Roulette>,
-    pub spheres: Vec<DetectionSphere>,
-    pub source_positions: Vec<DVec3>,
+    /// The receivers' detection spheres.
+    pub spheres: SphereSet,
     /// Lateral axis per pair, source-major.
     pub lateral_axes: Vec<DVec3>,
+    pub source_positions: Vec<DVec3>,
+}
+
+/// What a reflection needs of the triangle hit: its local frame (normal =
+/// the triangle's unit normal, on one side; the tracer turns it toward the
+/// arriving ray) and its law.
+pub(super) struct TriangleShading {
+    pub frame: Frame,
+    pub law: u32,
+}
+
+impl TriangleShading {
+    /// The frame of the triangle with unit normal `normal` and, for a
+    /// profiled surface, extrusion axis `axis` (its +X then runs along it,
+    /// what 1D polar data need).
+    pub fn new(normal: DVec3, axis: Option<DVec3>, law: u32) -> Self {
+        let frame = match axis {
+            Some(axis) => Frame::from_normal_and_tangent(normal, axis),
+            None => Frame::from_normal(normal),
+        };
+        Self { frame, law }
+    }
+
+    /// The frame whose normal faces a ray arriving along `dir`. For the
+    /// other side this is (tangent, −bitangent, −normal), bit for bit what
+    /// `Frame::from_normal(−normal)` and `from_normal_and_tangent(−normal,
+    /// axis)` compute (every product and sum there only changes sign).
+    #[inline]
+    fn facing(&self, dir: DVec3) -> Frame {
+        let f = self.frame;
+        if f.normal.dot(dir) > 0.0 {
+            Frame {
+                tangent: f.tangent,
+                bitangent: -f.bitangent,
+                normal: -f.normal,
+            }
+        } else {
+            f
+        }
+    }
 }
 
 /// Per-chunk counters, added in chunk order.
@@ -74,38 +113,53 @@ impl Tally {
     }
 }
 
+/// A lower bound below every computed e^(−x) for x < 1, relative: 1 − x
+/// never exceeds e^(−x), and this factor covers the rounding of 1 − x and
+/// of the library's exponential (within 2 ulp).
+const EXP_LOWER_BOUND_FACTOR: f64 = 1.0 - 1.0 / (1u64 << 50) as f64;
+
+/// The largest of the band values, for weights (never negative; unused
+/// bands hold 0): the same as `Bands::max_of(bands)` for them, as a short
+/// tree of comparisons that compiles to a few `maxpd`.
+#[inline]
+fn largest_weight(w: &Bands) -> f64 {
+    let m = |a: f64, b: f64| if a > b { a } else { b };
+    let x = &w.0;
+    const _: () = assert!(crate::bands::MAX_BANDS == 8);
+    let half = [m(x[0], x[4]), m(x[1], x[5]), m(x[2], x[6]), m(x[3], x[7])];
+    m(m(half[0], half[2]), m(half[1], half[3]))
+}
+
 impl Scene<'_> {
-    /// e^(−m L) per used band.
+    /// e^(−m L) per band of this pass (1 in the others, whose weights are 0).
     fn air_factor(&self, path_m: f64) -> Bands {
-        if !self.has_air {
-            return Bands::splat(1.0);
-        }
-        let mut f = Bands::ZERO;
-        for b in 0..self.bands {
-            f[b] = (-self.air_per_m[b] * path_m).exp();
+        let mut f = Bands::splat(1.0);
+        if self.has_air {
+            for &b in &self.group {
+                f[b] = (-self.air_per_m[b] * path_m).exp();
+            }
         }
         f
     }
 
-    /// Traces global ray `index` (source-major), adding to the echograms of its
-    /// source (`echograms` holds that source's receivers in order) and telling
-    /// `log` every closest-hit query it makes.
+    /// Traces global ray `index` (source-major), recording its receiver
+    /// crossings in `arrivals` (echogram index = pair index, source-major)
+    /// and telling `log` every closest-hit query it makes.
     pub fn trace_ray<L: QueryLog>(
         &self,
         index: u64,
-        echograms: &mut [Echogram],
+        arrivals: &mut ArrivalLog,
         tally: &mut Tally,
         log: &mut L,
     ) {
         let source = (index / self.rays_per_source as u64) as usize;
-        let receivers = self.spheres.len();
-        let axes = &self.lateral_axes[source * receivers..(source + 1) * receivers];
+        let first_pair = source * self.spheres.spheres().len();
         let mut rng = Stream::new(self.seed, self.first_ray + index);
         let mut dir = uniform_sphere(rng.uniform2());
         let mut pos = self.source_positions[source];
         // Wall weights only; the air factor follows from the path length.
         let mut weight = self.start_weight;
-        let start_max = weight.max_of(self.bands);
+        let start_max = largest_weight(&weight);
         let mut path_m = 0.0;
         let mut reflected = false;
 
@@ -121,18 +175,23 @@ impl Scene<'_> {
 
             // Receivers count reflected sound only: the direct sound is added exactly.
             if reflected {
-                for ((sphere, echogram), axis) in
-                    self.spheres.iter().zip(echograms.iter_mut()).zip(axes)
-                {
-                    if let Some((mid_m, chord_m)) = sphere.chord(pos, dir, segment_m) {
+                self.spheres
+                    .for_each_crossing(pos, dir, segment_m, |k, sphere, mid_m, chord_m| {
                         let at_m = path_m + mid_m;
                         let fluence = weight
                             * self.air_factor(at_m)
                             * (chord_m * sphere.inverse_volume_per_m3);
-                        let cos = dir.dot(*axis);
-                        echogram.add(at_m / self.speed_m_s, fluence, cos * cos);
-                    }
-                }
+                        let cos = dir.dot(self.lateral_axes[first_pair + k]);
+                        let time_s = at_m / self.speed_m_s;
+                        arrivals.add(
+                            first_pair + k,
+                            self.bins,
+                            self.bin_s,
+                            time_s,
+                            fluence,
+                            cos * cos,
+                        );
+                    });
             }
             path_m += segment_m;
 
@@ -165,40 +224,41 @@ impl Scene<'_> {
             }
 
             // Reflect in the local frame of the hit triangle, normal toward the ray.
-            let triangle = hit.triangle as usize;
+            let shading = &self.shading[hit.triangle as usize];
             pos += dir * segment_m;
-            let mut normal = self.normals[triangle];
-            if normal.dot(dir) > 0.0 {
-                normal = -normal;
-            }
-            let frame = match self.triangle_axis[triangle] {
-                Some(axis) => Frame::from_normal_and_tangent(normal, axis),
-                None => Frame::from_normal(normal),
-            };
+            let frame = shading.facing(dir);
             let wo = frame.to_local(-dir);
             let u_lobe = rng.uniform();
             let u_dir = rng.uniform2();
-            let law = &self.laws[self.triangle_law[triangle] as usize];
+            let law = &self.laws[shading.law as usize];
             let Some(sample) = law.sample(wo, u_lobe, u_dir) else {
                 tally.absorbed_rays += 1;
                 return;
             };
             weight *= sample.weight;
             dir = frame.to_world(sample.wi).normalize();
-            pos += normal * SURFACE_OFFSET_M;
+            pos += frame.normal * SURFACE_OFFSET_M;
             reflected = true;
             tally.reflections += 1;
 
-            // Russian roulette on the largest band energy (cheap bound first).
+            // Russian roulette on the largest band energy (cheap bounds first).
             if let Some(rr) = self.roulette {
                 let level = rr.threshold * start_max;
-                let bound = weight.max_of(self.bands) * (-self.air_min_per_m * path_m).exp();
-                if bound < level && (weight * self.air_factor(path_m)).max_of(self.bands) < level {
-                    if rng.uniform() < rr.survival {
-                        weight = weight * (1.0 / rr.survival);
-                    } else {
-                        tally.roulette_stopped_rays += 1;
-                        return;
+                let max_weight = largest_weight(&weight);
+                // While max_weight · (1 − x) is at or above the level, so is the
+                // bound with e^(−x) (x = air_min · path): the exponential is
+                // needed only near the level, and the decision is the same.
+                let x = self.air_min_per_m * path_m;
+                if max_weight * ((1.0 - x) * EXP_LOWER_BOUND_FACTOR) < level {
+                    let bound = max_weight * (-self.air_min_per_m * path_m).exp();
+                    if bound < level && largest_weight(&(weight * self.air_factor(path_m))) < level
+                    {
+                        if rng.uniform() < rr.survival {
+                            weight = weight * (1.0 / rr.survival);
+                        } else {
+                            tally.roulette_stopped_rays += 1;
+                            return;
+                        }
                     }
                 }
             }

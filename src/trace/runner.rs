@@ -7,12 +7,14 @@ use glam::DVec3;
 use rayon::prelude::*;
 
 use super::options::{TraceError, TraceOptions};
-use super::ray::{NoLog, QueryLog, Scene, Tally};
+use super::ray::{NoLog, QueryLog, Scene, Tally, TriangleShading};
 use super::result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
 use crate::accel::Bvh;
 use crate::bands::Bands;
 use crate::law::LawSet;
-use crate::receiver::{default_radius_m, lateral_axis, DetectionSphere, Echogram};
+use crate::receiver::{
+    default_radius_m, lateral_axis, ArrivalLog, DetectionSphere, Echogram, SphereSet,
+};
 use crate::room::inside::distance_to_triangle_m;
 use crate::room::{estimates, Room};
 
@@ -246,16 +248,7 @@ fn run_logged<L: QueryLog + Default + Send>(
         );
         for (b, (batch_pairs, tally, log)) in traced.iter_mut().enumerate() {
             scene.first_ray = options.first_ray + b as u64 * total_rays;
-            trace_pass(
-                &scene,
-                batch_pairs,
-                tally,
-                log,
-                total_rays,
-                bins,
-                options.bin_s,
-                progress,
-            );
+            trace_pass(&scene, batch_pairs, tally, log, total_rays, progress);
         }
     }
     let wall_time_s = started.elapsed().as_secs_f64();
@@ -353,39 +346,41 @@ fn nearest_surface(room: &Room, point: DVec3) -> Option<(&str, f64)> {
 
 /// Traces every ray of one pass in fixed chunks, in waves, merging every
 /// chunk in index order.
-#[allow(clippy::too_many_arguments)]
 fn trace_pass<L: QueryLog + Default + Send>(
     scene: &Scene<'_>,
     pairs: &mut [PairEchogram],
     tally: &mut Tally,
     log: &mut L,
     total_rays: u64,
-    bins: usize,
-    bin_s: f64,
     progress: &(dyn Fn(usize) + Sync),
 ) {
     let chunk_count = total_rays.div_ceil(RAYS_PER_CHUNK as u64);
     let wave = (2 * rayon::current_num_threads()).max(1) as u64;
+    let mut echograms: Vec<Echogram> = pairs
+        .iter_mut()
+        .map(|p| std::mem::replace(&mut p.echogram, Echogram::new(0, scene.bin_s)))
+        .collect();
     let mut wave_start = 0;
     while wave_start < chunk_count {
         let wave_end = (wave_start + wave).min(chunk_count);
-        let done: Vec<(Vec<Echogram>, Tally, L)> = (wave_start..wave_end)
+        let done: Vec<(ArrivalLog, Tally, L)> = (wave_start..wave_end)
             .into_par_iter()
             .map(|c| {
-                let out = trace_chunk(scene, c, total_rays, bins, bin_s);
+                let out = trace_chunk(scene, c, total_rays);
                 let first = c * RAYS_PER_CHUNK as u64;
                 progress(((first + RAYS_PER_CHUNK as u64).min(total_rays) - first) as usize);
                 out
             })
             .collect();
-        for (echograms, t, chunk_log) in done {
-            for (pair, e) in pairs.iter_mut().zip(&echograms) {
-                pair.echogram.merge(e);
-            }
+        for (arrivals, t, chunk_log) in done {
+            arrivals.merge_into(&mut echograms);
             tally.merge(&t);
             log.append(chunk_log);
         }
         wave_start = wave_end;
+    }
+    for (p, e) in pairs.iter_mut().zip(echograms) {
+        p.echogram = e;
     }
 }
 
@@ -404,24 +399,18 @@ fn build_scene<'a>(
     air_per_m: Bands,
 ) -> Scene<'a> {
     let bands = room.settings.bands.len();
-    let normals = room
+    let shading = room
         .triangles
         .iter()
         .map(|t| {
-            t.cross()
-                .try_normalize()
-                .unwrap_or(room.surfaces[t.surface as usize].normal)
+            let surface = &room.surfaces[t.surface as usize];
+            let normal = t.cross().try_normalize().unwrap_or(surface.normal);
+            TriangleShading::new(
+                normal,
+                surface.profile_axis,
+                laws.surface_law[t.surface as usize],
+            )
         })
-        .collect();
-    let triangle_law = room
-        .triangles
-        .iter()
-        .map(|t| laws.surface_law[t.surface as usize])
-        .collect();
-    let triangle_axis = room
-        .triangles
-        .iter()
-        .map(|t| room.surfaces[t.surface as usize].profile_axis)
         .collect();
     let mut start_weight = Bands::ZERO;
     for &b in group {
@@ -431,50 +420,55 @@ fn build_scene<'a>(
         .iter()
         .copied()
         .fold(f64::INFINITY, f64::min);
+    // Every segment starts at a source or on a triangle (off it by far less than a metre).
+    let reach_m = room
+        .triangles
+        .iter()
+        .flat_map(|t| t.vertices)
+        .chain(sources.iter().map(|s| s.position))
+        .map(|p| p.abs().max_element())
+        .fold(0.0, f64::max)
+        + 1.0;
+    let spheres: Vec<DetectionSphere> = receivers
+        .iter()
+        .map(|r| DetectionSphere::new(r.position, r.radius_m))
+        .collect();
     Scene {
         bvh,
-        normals,
-        triangle_law,
-        triangle_axis,
+        shading,
         laws: laws.laws,
-        bands,
+        group: group.to_vec(),
         seed: options.seed,
         first_ray: options.first_ray,
         rays_per_source: options.rays,
         start_weight,
         max_path_m: speed_m_s * options.duration_s,
         speed_m_s,
+        bins: options.bins(),
+        bin_s: options.bin_s,
         air_per_m,
         air_min_per_m,
         has_air: air_per_m.0.iter().any(|&m| m != 0.0),
         roulette: options.roulette,
-        spheres: receivers
-            .iter()
-            .map(|r| DetectionSphere::new(r.position, r.radius_m))
-            .collect(),
-        source_positions: sources.iter().map(|s| s.position).collect::<Vec<DVec3>>(),
+        spheres: SphereSet::new(&spheres, reach_m),
         lateral_axes: pairs.iter().map(|p| p.lateral_axis).collect(),
+        source_positions: sources.iter().map(|s| s.position).collect::<Vec<DVec3>>(),
     }
 }
 
-/// Traces chunk `chunk` into fresh echograms (one per pair, source-major).
+/// Traces chunk `chunk`, recording its receiver crossings.
 fn trace_chunk<L: QueryLog + Default>(
     scene: &Scene<'_>,
     chunk: u64,
     total_rays: u64,
-    bins: usize,
-    bin_s: f64,
-) -> (Vec<Echogram>, Tally, L) {
+) -> (ArrivalLog, Tally, L) {
     let mut log = L::default();
-    let receivers = scene.spheres.len();
-    let mut echograms = vec![Echogram::new(bins, bin_s); scene.source_positions.len() * receivers];
+    let mut arrivals = ArrivalLog::new();
     let mut tally = Tally::default();
     let first = chunk * RAYS_PER_CHUNK as u64;
     let last = (first + RAYS_PER_CHUNK as u64).min(total_rays);
     for index in first..last {
-        let source = (index / scene.rays_per_source as u64) as usize;
-        let mine = &mut echograms[source * receivers..(source + 1) * receivers];
-        scene.trace_ray(index, mine, &mut tally, &mut log);
+        scene.trace_ray(index, &mut arrivals, &mut tally, &mut log);
     }
-    (echograms, tally, log)
+    (arrivals, tally, log)
 }
