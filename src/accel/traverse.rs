@@ -308,7 +308,7 @@ mod tests {
         // near and far, at any scale, must enter its slot; the distance limit
         // just beyond the entry point must not cut it off.
         let mut s = Stream::new(77, 0);
-        let mut coordinate = |s: &mut Stream| {
+        let coordinate = |s: &mut Stream| {
             let scale = 10f64.powi((s.next_u64() % 7) as i32 - 3);
             (s.uniform() - 0.5) * 2.0 * scale
         };
