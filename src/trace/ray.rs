@@ -101,38 +101,51 @@ pub(super) struct Tally {
     pub lost_energy_j: Bands,
     pub energy_at_end_j: Bands,
     /// The floating-point additions, in order, when deferred.
-    deferred: Option<Vec<Addition>>,
+    deferred: Option<Box<Deferred>>,
 }
 
-/// One deferred floating-point addition of a [`Tally`].
-#[derive(Clone, Copy)]
-enum Addition {
-    FreePath(f64),
-    LostEnergy(Bands),
-    EnergyAtEnd(Bands),
+/// The deferred floating-point additions of a [`Tally`], one list per sum
+/// (each sum depends only on the order of its own additions).
+#[derive(Clone, Default)]
+struct Deferred {
+    free_paths_m: Vec<f64>,
+    lost_energy_j: Vec<Bands>,
+    energy_at_end_j: Vec<Bands>,
 }
 
 impl Tally {
     /// A tally that keeps its floating-point additions for [`Tally::append`].
     pub fn deferred() -> Self {
         Self {
-            deferred: Some(Vec::new()),
+            deferred: Some(Box::default()),
             ..Self::default()
-        }
-    }
-
-    fn add(&mut self, a: Addition) {
-        match (&mut self.deferred, a) {
-            (Some(list), a) => list.push(a),
-            (None, Addition::FreePath(m)) => self.free_path_sum_m += m,
-            (None, Addition::LostEnergy(e)) => self.lost_energy_j += e,
-            (None, Addition::EnergyAtEnd(e)) => self.energy_at_end_j += e,
         }
     }
 
     fn add_free_path(&mut self, length_m: f64) {
         self.free_paths += 1;
-        self.add(Addition::FreePath(length_m));
+        self.add_free_path_length(length_m);
+    }
+
+    fn add_free_path_length(&mut self, length_m: f64) {
+        match &mut self.deferred {
+            Some(d) => d.free_paths_m.push(length_m),
+            None => self.free_path_sum_m += length_m,
+        }
+    }
+
+    fn add_lost_energy(&mut self, energy_j: Bands) {
+        match &mut self.deferred {
+            Some(d) => d.lost_energy_j.push(energy_j),
+            None => self.lost_energy_j += energy_j,
+        }
+    }
+
+    fn add_energy_at_end(&mut self, energy_j: Bands) {
+        match &mut self.deferred {
+            Some(d) => d.energy_at_end_j.push(energy_j),
+            None => self.energy_at_end_j += energy_j,
+        }
     }
 
     /// Adds the counts of `later` and replays its deferred additions, as if
@@ -149,8 +162,16 @@ impl Tally {
                 && later.lost_energy_j == Bands::ZERO
                 && later.energy_at_end_j == Bands::ZERO
         );
-        for a in later.deferred.into_iter().flatten() {
-            self.add(a);
+        if let Some(d) = later.deferred {
+            for m in d.free_paths_m {
+                self.add_free_path_length(m);
+            }
+            for e in d.lost_energy_j {
+                self.add_lost_energy(e);
+            }
+            for e in d.energy_at_end_j {
+                self.add_energy_at_end(e);
+            }
         }
     }
 
@@ -333,10 +354,10 @@ impl Scene<'_> {
             match found {
                 None => {
                     tally.lost_rays += 1;
-                    tally.add(Addition::LostEnergy(energy));
+                    tally.add_lost_energy(energy);
                 }
                 Some(beyond) => {
-                    tally.add(Addition::EnergyAtEnd(energy));
+                    tally.add_energy_at_end(energy);
                     // The free path in progress counts whole, past the
                     // duration: stopping at the first wall after c·T is a
                     // stopping time, so by Wald's identity the ratio of
