@@ -11,11 +11,11 @@
 //! a tracer's queries must: the plain replay overlaps consecutive queries,
 //! which no tracer can, so it is the stricter baseline.
 //!
-//! Measured on the 2-core development machine, quiet (summary, best of 3):
-//! run ÷ bare replay, one thread: shoebox 1.82, hall 1.42, demo hall 1.27;
-//! segments/s of a run with 1 / 2 threads: shoebox 8.9 M / 13.0 M, hall
-//! 4.5 M / 8.1 M, demo hall 3.7 M / 7.0 M. The hall's run includes its
-//! 0.5 ms BVH build.
+//! Measured on the 2-core development machine, quiet (summary, best of 3;
+//! criterion medians in brackets): run ÷ bare replay, one thread: shoebox
+//! 1.80 (1.82), hall 1.40 (1.43), demo hall 1.24 (1.19); segments/s of a run
+//! with 1 / 2 threads: shoebox 9.1 M / 16.6 M, hall 4.6 M / 8.2 M, demo hall
+//! 3.9 M / 6.8 M. The hall's run includes its 0.5 ms BVH build.
 
 use std::hint::black_box;
 use std::time::Instant;
