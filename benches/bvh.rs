@@ -5,6 +5,11 @@
 //! After criterion's groups a short summary times each case again
 //! (best of 3 passes over the same rays) and prints rays/s, the ratio to
 //! polaray, and how often the crates' f32 answers disagree with polaray's.
+//!
+//! Measured on the 2-core development machine, quiet (summary, Mrays/s, 1 /
+//! 2 threads): hall polaray 9.44 / 18.09, `obvhs` 6.52 / 12.79, `bvh` 1.43 /
+//! 2.80; shoebox polaray 16.68 / 32.23, `obvhs` 15.15 / 30.34, `bvh` 4.30 /
+//! 8.51; 1M-triangle build 0.72 s. Criterion medians agree within 6 %.
 
 mod common;
 

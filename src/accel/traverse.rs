@@ -298,6 +298,65 @@ pub(crate) fn any(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::accel::node::WideBox;
+    use crate::random::Stream;
+
+    #[test]
+    fn slab_test_never_rejects_a_box_the_ray_enters() {
+        // Conservativeness (Ize, JCGT 2(2), 2013, the property the traversal
+        // relies on): rays aimed at points just inside a face of a box, from
+        // near and far, at any scale, must enter its slot; the distance limit
+        // just beyond the entry point must not cut it off.
+        let mut s = Stream::new(77, 0);
+        let coordinate = |s: &mut Stream| {
+            let scale = 10f64.powi((s.next_u64() % 7) as i32 - 3);
+            (s.uniform() - 0.5) * 2.0 * scale
+        };
+        for _ in 0..20_000 {
+            let mut node = Node4::EMPTY;
+            let mut boxes = Vec::new();
+            for slot in 0..4 {
+                let a = DVec3::new(coordinate(&mut s), coordinate(&mut s), coordinate(&mut s));
+                let b = DVec3::new(coordinate(&mut s), coordinate(&mut s), coordinate(&mut s));
+                // Some boxes flat along one axis, like a wall's.
+                let (min, mut max) = (a.min(b), a.max(b));
+                if s.uniform() < 0.3 {
+                    let k = (s.next_u64() % 3) as usize;
+                    max[k] = min[k];
+                }
+                node.set_box(slot, &WideBox::outward(min, max));
+                boxes.push((min, max));
+            }
+            let slot = (s.next_u64() % 4) as usize;
+            let (min, max) = boxes[slot];
+            // A point inside the box, then pushed onto one face (just inside).
+            let t = DVec3::new(s.uniform(), s.uniform(), s.uniform());
+            let mut target = min + (max - min) * t;
+            let axis = (s.next_u64() % 3) as usize;
+            target[axis] = if s.uniform() < 0.5 {
+                min[axis]
+            } else {
+                max[axis]
+            };
+            let toward = DVec3::new(s.uniform(), s.uniform(), s.uniform()) * 2.0 - DVec3::ONE;
+            let reach = 10f64.powi((s.next_u64() % 6) as i32 - 2);
+            let origin = target - toward.normalize_or(DVec3::X) * reach;
+            let offset = target - origin;
+            let distance = offset.length();
+            if distance == 0.0 {
+                continue;
+            }
+            let direction = offset / distance;
+            // The limit just beyond the target; the ray enters at or before it.
+            let limit = widened_limit(distance * (1.0 + 1e-12));
+            let ray = SlabRay::new(origin, direction);
+            let (_, mask) = ray.test(&node, F4::splat(limit));
+            assert!(
+                mask & (1 << slot) != 0,
+                "box {min:?}..{max:?} rejected: origin {origin:?} direction {direction:?} target {target:?}"
+            );
+        }
+    }
 
     #[test]
     fn rounded_coordinates_stay_on_their_side() {

@@ -120,6 +120,11 @@ impl ArrivalLog {
         }
     }
 
+    /// Appends the arrivals of `later`, recorded after these.
+    pub fn append(&mut self, mut later: Self) {
+        self.arrivals.append(&mut later.arrivals);
+    }
+
     /// Number of arrivals recorded.
     #[must_use]
     pub fn len(&self) -> usize {

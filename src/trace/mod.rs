@@ -39,9 +39,13 @@
 //!   t = d / c, so it is neither double counted nor noisy.
 //! - **Determinism.** Ray i (over all sources, source-major) draws, in every pass, only from
 //!   `Stream::new(seed, first_ray + i)` (`first_ray` is 0 unless a caller
-//!   traces batches of one larger set, see [`TraceOptions::first_ray`]). Rays are traced in fixed chunks of
-//!   [`RAYS_PER_CHUNK`]; each chunk fills its own echograms and statistics,
-//!   which are added in chunk order, so any thread count gives bit-identical results.
+//!   traces batches of one larger set, see [`TraceOptions::first_ray`]). Rays
+//!   are traced in fixed chunks of [`RAYS_PER_CHUNK`]; each chunk records its
+//!   own receiver arrivals and statistics, which are added in chunk order, so
+//!   any thread count gives bit-identical results. Within a chunk, two runs of
+//!   rays are traced side by side (one ray's reflection overlaps the other's
+//!   closest-hit query) and their records joined in ray order, so the sums are
+//!   those of tracing the rays one by one.
 
 mod options;
 mod ray;

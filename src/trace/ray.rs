@@ -3,7 +3,7 @@
 use glam::DVec3;
 
 use super::options::Roulette;
-use crate::accel::Bvh;
+use crate::accel::{Bvh, Hit};
 use crate::bands::Bands;
 use crate::geometry::Frame;
 use crate::law::ReflectionLaw;
@@ -86,6 +86,11 @@ impl TriangleShading {
 }
 
 /// Per-chunk counters, added in chunk order.
+///
+/// A tally can defer its floating-point sums ([`Tally::deferred`]): it then
+/// keeps each addition in order instead of summing, so that appending it to
+/// another tally ([`Tally::append`]) gives exactly the sums of one tally
+/// that saw all the additions in sequence.
 #[derive(Clone, Default)]
 pub(super) struct Tally {
     pub segments: u64,
@@ -97,10 +102,84 @@ pub(super) struct Tally {
     pub absorbed_rays: u64,
     pub lost_energy_j: Bands,
     pub energy_at_end_j: Bands,
+    /// The floating-point additions, in order, when deferred.
+    deferred: Option<Box<Deferred>>,
+}
+
+/// The deferred floating-point additions of a [`Tally`], one list per sum
+/// (each sum depends only on the order of its own additions).
+#[derive(Clone, Default)]
+struct Deferred {
+    free_paths_m: Vec<f64>,
+    lost_energy_j: Vec<Bands>,
+    energy_at_end_j: Vec<Bands>,
 }
 
 impl Tally {
+    /// A tally that keeps its floating-point additions for [`Tally::append`].
+    pub fn deferred() -> Self {
+        Self {
+            deferred: Some(Box::default()),
+            ..Self::default()
+        }
+    }
+
+    fn add_free_path(&mut self, length_m: f64) {
+        self.free_paths += 1;
+        self.add_free_path_length(length_m);
+    }
+
+    fn add_free_path_length(&mut self, length_m: f64) {
+        match &mut self.deferred {
+            Some(d) => d.free_paths_m.push(length_m),
+            None => self.free_path_sum_m += length_m,
+        }
+    }
+
+    fn add_lost_energy(&mut self, energy_j: Bands) {
+        match &mut self.deferred {
+            Some(d) => d.lost_energy_j.push(energy_j),
+            None => self.lost_energy_j += energy_j,
+        }
+    }
+
+    fn add_energy_at_end(&mut self, energy_j: Bands) {
+        match &mut self.deferred {
+            Some(d) => d.energy_at_end_j.push(energy_j),
+            None => self.energy_at_end_j += energy_j,
+        }
+    }
+
+    /// Adds the counts of `later` and replays its deferred additions, as if
+    /// this tally had seen them after its own.
+    pub fn append(&mut self, later: Self) {
+        self.segments += later.segments;
+        self.reflections += later.reflections;
+        self.free_paths += later.free_paths;
+        self.lost_rays += later.lost_rays;
+        self.roulette_stopped_rays += later.roulette_stopped_rays;
+        self.absorbed_rays += later.absorbed_rays;
+        debug_assert!(
+            later.free_path_sum_m == 0.0
+                && later.lost_energy_j == Bands::ZERO
+                && later.energy_at_end_j == Bands::ZERO
+        );
+        if let Some(d) = later.deferred {
+            for m in d.free_paths_m {
+                self.add_free_path_length(m);
+            }
+            for e in d.lost_energy_j {
+                self.add_lost_energy(e);
+            }
+            for e in d.energy_at_end_j {
+                self.add_energy_at_end(e);
+            }
+        }
+    }
+
+    /// Adds the counts and sums of a whole later chunk.
     pub fn merge(&mut self, o: &Self) {
+        debug_assert!(o.deferred.is_none());
         self.segments += o.segments;
         self.reflections += o.reflections;
         self.free_path_sum_m += o.free_path_sum_m;
@@ -142,125 +221,249 @@ impl Scene<'_> {
         f
     }
 
-    /// Traces global ray `index` (source-major), recording its receiver
-    /// crossings in `arrivals` (echogram index = pair index, source-major)
-    /// and telling `log` every closest-hit query it makes.
-    pub fn trace_ray<L: QueryLog>(
+    /// Traces rays `first..last` (global, source-major indices), recording
+    /// their receiver crossings in `arrivals` (echogram index = pair index,
+    /// source-major), counting in `tally` and telling `log` every closest-hit
+    /// query, in ray order.
+    ///
+    /// The rays run as [`STREAMS`] interleaved streams, each over one run of
+    /// consecutive rays, with exactly the results of tracing them one after
+    /// the other (start, then query and advance until the ray ends): each
+    /// stream keeps its own arrivals, counters and query log, and the later
+    /// streams' are appended to the first's in order. While one ray waits for
+    /// its closest hit, the processor works on another, which a single chain
+    /// of dependent queries does not allow.
+    pub fn trace_rays<L: QueryLog + Default>(
         &self,
-        index: u64,
+        first: u64,
+        last: u64,
         arrivals: &mut ArrivalLog,
         tally: &mut Tally,
         log: &mut L,
     ) {
-        let source = (index / self.rays_per_source as u64) as usize;
-        let first_pair = source * self.spheres.spheres().len();
-        let mut rng = Stream::new(self.seed, self.first_ray + index);
-        let mut dir = uniform_sphere(rng.uniform2());
-        let mut pos = self.source_positions[source];
-        // Wall weights only; the air factor follows from the path length.
-        let mut weight = self.start_weight;
-        let start_max = largest_weight(&weight);
-        let mut path_m = 0.0;
-        let mut reflected = false;
-
+        // Stream k traces the k-th of STREAMS consecutive runs of rays.
+        let bound = |k: u64| first + (last - first) * k / STREAMS as u64;
+        let mut streams: [RayStream<L>; STREAMS] = std::array::from_fn(|k| RayStream {
+            next: bound(k as u64),
+            last: bound(k as u64 + 1),
+            ray: None,
+            arrivals: ArrivalLog::new(),
+            tally: if k == 0 {
+                std::mem::take(tally)
+            } else {
+                Tally::deferred()
+            },
+            log: L::default(),
+        });
+        streams[0].arrivals = std::mem::take(arrivals);
+        streams[0].log = std::mem::take(log);
+        for stream in &mut streams {
+            stream.refill(self);
+        }
         loop {
-            let remaining = self.max_path_m - path_m;
-            // One unbounded query per segment: a wall beyond the end of the
-            // duration is still needed (lost ray or not, the free path in progress).
-            log.record(pos, dir);
-            let found = self.bvh.closest_hit(pos, dir, f64::INFINITY);
-            let hit = found.filter(|h| h.distance_m < remaining);
-            let segment_m = hit.map_or(remaining, |h| h.distance_m);
-            tally.segments += 1;
-
-            // Receivers count reflected sound only: the direct sound is added exactly.
-            if reflected {
-                self.spheres
-                    .for_each_crossing(pos, dir, segment_m, |k, sphere, mid_m, chord_m| {
-                        let at_m = path_m + mid_m;
-                        let fluence = weight
-                            * self.air_factor(at_m)
-                            * (chord_m * sphere.inverse_volume_per_m3);
-                        let cos = dir.dot(self.lateral_axes[first_pair + k]);
-                        let time_s = at_m / self.speed_m_s;
-                        arrivals.add(
-                            first_pair + k,
-                            self.bins,
-                            self.bin_s,
-                            time_s,
-                            fluence,
-                            cos * cos,
-                        );
-                    });
+            let mut found = [None; STREAMS];
+            for (stream, found) in streams.iter_mut().zip(&mut found) {
+                *found = stream.ray.as_ref().map(|r| self.query(r, &mut stream.log));
             }
-            path_m += segment_m;
+            if found.iter().all(Option::is_none) {
+                break;
+            }
+            for (stream, found) in streams.iter_mut().zip(found) {
+                stream.step(self, found);
+            }
+        }
+        let [first_stream, later @ ..] = streams;
+        *arrivals = first_stream.arrivals;
+        *tally = first_stream.tally;
+        *log = first_stream.log;
+        for stream in later {
+            arrivals.append(stream.arrivals);
+            tally.append(stream.tally);
+            log.append(stream.log);
+        }
+    }
 
-            let Some(hit) = hit else {
-                // Either the duration is used up or nothing lies ahead at all.
-                let energy = weight * self.air_factor(path_m);
-                match found {
-                    None => {
-                        tally.lost_rays += 1;
-                        tally.lost_energy_j += energy;
-                    }
-                    Some(beyond) => {
-                        tally.energy_at_end_j += energy;
-                        // The free path in progress counts whole, past the
-                        // duration: stopping at the first wall after c·T is a
-                        // stopping time, so by Wald's identity the ratio of
-                        // summed lengths to segments stays unbiased (dropping
-                        // it would favour short paths, the inspection paradox).
-                        if reflected {
-                            tally.free_path_sum_m += beyond.distance_m;
-                            tally.free_paths += 1;
-                        }
+    /// Ray `index` (source-major) at its source, before its first query.
+    fn start_ray(&self, index: u64) -> RayState {
+        let source = (index / self.rays_per_source as u64) as usize;
+        let mut rng = Stream::new(self.seed, self.first_ray + index);
+        let dir = uniform_sphere(rng.uniform2());
+        // Wall weights only; the air factor follows from the path length.
+        let weight = self.start_weight;
+        RayState {
+            rng,
+            pos: self.source_positions[source],
+            dir,
+            weight,
+            start_max: largest_weight(&weight),
+            path_m: 0.0,
+            reflected: false,
+            first_pair: source * self.spheres.spheres().len(),
+        }
+    }
+
+    /// The closest-hit query for the ray's next segment. One unbounded query
+    /// per segment: a wall beyond the end of the duration is still needed
+    /// (lost ray or not, the free path in progress).
+    #[inline]
+    fn query<L: QueryLog>(&self, ray: &RayState, log: &mut L) -> Option<Hit> {
+        log.record(ray.pos, ray.dir);
+        self.bvh.closest_hit(ray.pos, ray.dir, f64::INFINITY)
+    }
+
+    /// Moves the ray along its segment, whose query answered `found`, and
+    /// reflects it; false when the ray has ended.
+    #[inline]
+    fn advance(
+        &self,
+        ray: &mut RayState,
+        found: Option<Hit>,
+        arrivals: &mut ArrivalLog,
+        tally: &mut Tally,
+    ) -> bool {
+        let remaining = self.max_path_m - ray.path_m;
+        let hit = found.filter(|h| h.distance_m < remaining);
+        let segment_m = hit.map_or(remaining, |h| h.distance_m);
+        tally.segments += 1;
+        let (pos, dir, path_m) = (ray.pos, ray.dir, ray.path_m);
+
+        // Receivers count reflected sound only: the direct sound is added exactly.
+        if ray.reflected {
+            let weight = ray.weight;
+            let first_pair = ray.first_pair;
+            self.spheres
+                .for_each_crossing(pos, dir, segment_m, |k, sphere, mid_m, chord_m| {
+                    let at_m = path_m + mid_m;
+                    let fluence =
+                        weight * self.air_factor(at_m) * (chord_m * sphere.inverse_volume_per_m3);
+                    let cos = dir.dot(self.lateral_axes[first_pair + k]);
+                    let time_s = at_m / self.speed_m_s;
+                    arrivals.add(
+                        first_pair + k,
+                        self.bins,
+                        self.bin_s,
+                        time_s,
+                        fluence,
+                        cos * cos,
+                    );
+                });
+        }
+        ray.path_m += segment_m;
+
+        let Some(hit) = hit else {
+            // Either the duration is used up or nothing lies ahead at all.
+            let energy = ray.weight * self.air_factor(ray.path_m);
+            match found {
+                None => {
+                    tally.lost_rays += 1;
+                    tally.add_lost_energy(energy);
+                }
+                Some(beyond) => {
+                    tally.add_energy_at_end(energy);
+                    // The free path in progress counts whole, past the
+                    // duration: stopping at the first wall after c·T is a
+                    // stopping time, so by Wald's identity the ratio of
+                    // summed lengths to segments stays unbiased (dropping
+                    // it would favour short paths, the inspection paradox).
+                    if ray.reflected {
+                        tally.add_free_path(beyond.distance_m);
                     }
                 }
-                return;
-            };
-            if reflected {
-                tally.free_path_sum_m += segment_m;
-                tally.free_paths += 1;
             }
+            return false;
+        };
+        if ray.reflected {
+            tally.add_free_path(segment_m);
+        }
 
-            // Reflect in the local frame of the hit triangle, normal toward the ray.
-            let shading = &self.shading[hit.triangle as usize];
-            pos += dir * segment_m;
-            let frame = shading.facing(dir);
-            let wo = frame.to_local(-dir);
-            let u_lobe = rng.uniform();
-            let u_dir = rng.uniform2();
-            let law = &self.laws[shading.law as usize];
-            let Some(sample) = law.sample(wo, u_lobe, u_dir) else {
-                tally.absorbed_rays += 1;
-                return;
-            };
-            weight *= sample.weight;
-            dir = frame.to_world(sample.wi).normalize();
-            pos += frame.normal * SURFACE_OFFSET_M;
-            reflected = true;
-            tally.reflections += 1;
+        // Reflect in the local frame of the hit triangle, normal toward the ray.
+        let shading = &self.shading[hit.triangle as usize];
+        let frame = shading.facing(dir);
+        let wo = frame.to_local(-dir);
+        let u_lobe = ray.rng.uniform();
+        let u_dir = ray.rng.uniform2();
+        let law = &self.laws[shading.law as usize];
+        let Some(sample) = law.sample(wo, u_lobe, u_dir) else {
+            tally.absorbed_rays += 1;
+            return false;
+        };
+        ray.weight *= sample.weight;
+        ray.dir = frame.to_world(sample.wi).normalize();
+        ray.pos = pos + dir * segment_m + frame.normal * SURFACE_OFFSET_M;
+        ray.reflected = true;
+        tally.reflections += 1;
 
-            // Russian roulette on the largest band energy (cheap bounds first).
-            if let Some(rr) = self.roulette {
-                let level = rr.threshold * start_max;
-                let max_weight = largest_weight(&weight);
-                // While max_weight · (1 − x) is at or above the level, so is the
-                // bound with e^(−x) (x = air_min · path): the exponential is
-                // needed only near the level, and the decision is the same.
-                let x = self.air_min_per_m * path_m;
-                if max_weight * ((1.0 - x) * EXP_LOWER_BOUND_FACTOR) < level {
-                    let bound = max_weight * (-self.air_min_per_m * path_m).exp();
-                    if bound < level && largest_weight(&(weight * self.air_factor(path_m))) < level
-                    {
-                        if rng.uniform() < rr.survival {
-                            weight = weight * (1.0 / rr.survival);
-                        } else {
-                            tally.roulette_stopped_rays += 1;
-                            return;
-                        }
+        // Russian roulette on the largest band energy (cheap bounds first).
+        if let Some(rr) = self.roulette {
+            let level = rr.threshold * ray.start_max;
+            let max_weight = largest_weight(&ray.weight);
+            // While max_weight · (1 − x) is at or above the level, so is the
+            // bound with e^(−x) (x = air_min · path): the exponential is
+            // needed only near the level, and the decision is the same.
+            let x = self.air_min_per_m * ray.path_m;
+            if max_weight * ((1.0 - x) * EXP_LOWER_BOUND_FACTOR) < level {
+                let bound = max_weight * (-self.air_min_per_m * ray.path_m).exp();
+                if bound < level
+                    && largest_weight(&(ray.weight * self.air_factor(ray.path_m))) < level
+                {
+                    if ray.rng.uniform() < rr.survival {
+                        ray.weight = ray.weight * (1.0 / rr.survival);
+                    } else {
+                        tally.roulette_stopped_rays += 1;
+                        return false;
                     }
                 }
+            }
+        }
+        true
+    }
+}
+
+/// A ray in flight.
+struct RayState {
+    rng: Stream,
+    pos: DVec3,
+    dir: DVec3,
+    /// Wall weights only; the air factor follows from the path length.
+    weight: Bands,
+    /// Largest band weight at the start (the roulette's reference).
+    start_max: f64,
+    path_m: f64,
+    reflected: bool,
+    /// Index of the ray's first pair (its source's first receiver).
+    first_pair: usize,
+}
+
+/// Rays traced side by side in one thread by [`Scene::trace_rays`].
+const STREAMS: usize = 2;
+
+/// One of the streams of [`Scene::trace_rays`]: rays `next..last` still to
+/// start, the ray in flight, and what they record.
+struct RayStream<L> {
+    next: u64,
+    last: u64,
+    ray: Option<RayState>,
+    arrivals: ArrivalLog,
+    tally: Tally,
+    log: L,
+}
+
+impl<L: QueryLog> RayStream<L> {
+    /// Starts the next ray if none is in flight and any is left.
+    fn refill(&mut self, scene: &Scene<'_>) {
+        if self.ray.is_none() && self.next < self.last {
+            self.ray = Some(scene.start_ray(self.next));
+            self.next += 1;
+        }
+    }
+
+    /// Advances the ray in flight past the answer `found` to its query.
+    #[inline]
+    fn step(&mut self, scene: &Scene<'_>, found: Option<Option<Hit>>) {
+        if let (Some(ray), Some(found)) = (self.ray.as_mut(), found) {
+            if !scene.advance(ray, found, &mut self.arrivals, &mut self.tally) {
+                self.ray = None;
+                self.refill(scene);
             }
         }
     }

@@ -467,8 +467,6 @@ fn trace_chunk<L: QueryLog + Default>(
     let mut tally = Tally::default();
     let first = chunk * RAYS_PER_CHUNK as u64;
     let last = (first + RAYS_PER_CHUNK as u64).min(total_rays);
-    for index in first..last {
-        scene.trace_ray(index, &mut arrivals, &mut tally, &mut log);
-    }
+    scene.trace_rays(first, last, &mut arrivals, &mut tally, &mut log);
     (arrivals, tally, log)
 }
