@@ -4,9 +4,6 @@
 use serde::Serialize;
 
 use crate::law::CalibrationArc;
-use crate::polar::zone::{
-    DEFAULT_RECEIVER_DISTANCE_M, DEFAULT_SAMPLE_WIDTH_M, DEFAULT_SOURCE_DISTANCE_M,
-};
 use crate::polar::{Arrangement, GoniometerGeometry};
 
 /// Layout of the virtual goniometer, in the x–z plane of the local frame.
@@ -35,16 +32,14 @@ pub struct ArcGeometry {
     pub slab_half_width_deg: f64,
 }
 
+/// Half-width of the slab across the arc in which receivers collect, degrees.
+const SLAB_HALF_WIDTH_DEG: f64 = 2.5;
+
 impl Default for ArcGeometry {
+    /// The default goniometer of [`crate::room::DiffusionGoniometer`] with the
+    /// ±2.5° slab.
     fn default() -> Self {
-        Self {
-            sample_width_m: DEFAULT_SAMPLE_WIDTH_M,
-            source_distance_m: DEFAULT_SOURCE_DISTANCE_M,
-            receiver_distance_m: DEFAULT_RECEIVER_DISTANCE_M,
-            receivers: 37,
-            receiver_step_deg: 5.0,
-            slab_half_width_deg: 2.5,
-        }
+        Self::from(&crate::room::DiffusionGoniometer::default())
     }
 }
 
@@ -58,7 +53,7 @@ impl From<&crate::room::DiffusionGoniometer> for ArcGeometry {
             receiver_distance_m: g.receiver_distance_m,
             receivers: g.receivers,
             receiver_step_deg: g.receiver_step_deg,
-            ..Self::default()
+            slab_half_width_deg: SLAB_HALF_WIDTH_DEG,
         }
     }
 }
