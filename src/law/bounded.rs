@@ -588,38 +588,34 @@ impl BoundedLaw {
         PI * level / (1.0 - eta).max(1e-300).sqrt()
     }
 
-    /// The folded density k(u, v) = ½[g(|u − v|) + g(u + v or 2 − u − v)] of
-    /// one component given its level function (see the module documentation).
-    fn folded(u: f64, v: f64, level: impl Fn(f64) -> f64) -> f64 {
-        let near = (u - v).abs();
-        let far = if u + v <= 1.0 { u + v } else { 2.0 - u - v };
-        let g = |eta: f64| {
-            let l = level(eta);
-            if l == 0.0 {
-                0.0
-            } else {
-                Self::radial(l, eta)
-            }
-        };
-        0.5 * (g(near) + g(far))
-    }
-
     /// Densities over (v, φ) of the near-mirror component (unit energy) and
     /// of the even component with unit levels split as (inner, outer), for an
     /// arrival at u and an exit at v with azimuth offset Δφ from the mirror.
+    /// Each is the folded density k(u, v) = ½[g(|u − v|) + g(u + v or
+    /// 2 − u − v)] of its level function (see the module documentation); the
+    /// two folded points are shared by all three.
     fn component_densities(&self, u: f64, v: f64, dphi: f64) -> (f64, f64, f64) {
         let half = self.near_azimuth_half_width_rad(u, v);
-        let near = if dphi.abs() <= half {
-            let level = self.near_level;
-            let sin2 = self.sin2_near;
-            Self::folded(u, v, |eta| if eta <= sin2 { level } else { 0.0 }) / (2.0 * half)
-        } else {
-            0.0
-        };
-        let sin2 = self.sin2_cone;
-        let inner = Self::folded(u, v, |eta| if eta <= sin2 { 1.0 } else { 0.0 }) / TAU;
-        let outer = Self::folded(u, v, |eta| if eta <= sin2 { 0.0 } else { 1.0 }) / TAU;
-        (near, inner, outer)
+        let near_on = dphi.abs() <= half;
+        let (mut near, mut inner, mut outer) = (0.0, 0.0, 0.0);
+        for eta in [
+            (u - v).abs(),
+            if u + v <= 1.0 { u + v } else { 2.0 - u - v },
+        ] {
+            if near_on && eta <= self.sin2_near {
+                near += Self::radial(self.near_level, eta);
+            }
+            if eta <= self.sin2_cone {
+                inner += Self::radial(1.0, eta);
+            } else {
+                outer += Self::radial(1.0, eta);
+            }
+        }
+        (
+            0.5 * near / (2.0 * half),
+            0.5 * inner / TAU,
+            0.5 * outer / TAU,
+        )
     }
 
     /// Per-band scattered densities over (v, φ) (scattering and reflectance
