@@ -94,10 +94,10 @@ fn identical_treatments_differ_by_exactly_zero() {
     assert_ne!(g("A: panel / split"), g("B: diffuser / split"));
 }
 
-/// The rule of `polaray::compare::verdict`, restated: S > 1 and S > N is
+/// The rule of `polaray::compare::verdict`, restated: S − N > 1 is
 /// sensitive, S + N ≤ 1 robust, anything else within noise.
 fn rule(s: f64, n: f64) -> &'static str {
-    if s > 1.0 && s > n {
+    if s - n > 1.0 {
         "sensitive"
     } else if s + n <= 1.0 {
         "robust"

@@ -32,8 +32,13 @@ fn room() -> Room {
 }
 
 fn traced(threads: usize, seed: u64) -> TraceResult {
+    traced_with(threads, seed, trace::Estimator::Sphere)
+}
+
+fn traced_with(threads: usize, seed: u64, estimator: trace::Estimator) -> TraceResult {
     let room = room();
     let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.estimator = estimator;
     // Several chunks per source, so threads really interleave.
     options.rays = 3 * trace::RAYS_PER_CHUNK + 17;
     options.seed = seed;
@@ -63,6 +68,15 @@ fn thread_count_does_not_change_a_bit() {
     let one = bits(&traced(1, 5));
     assert_eq!(one, bits(&traced(2, 5)), "1 vs 2 threads");
     assert_eq!(one, bits(&traced(3, 5)), "1 vs 3 threads");
+}
+
+#[test]
+fn next_event_estimator_is_thread_count_independent_too() {
+    let ne = trace::Estimator::NextEvent(trace::NextEventSettings::default());
+    let one = bits(&traced_with(1, 5, ne));
+    assert_eq!(one, bits(&traced_with(2, 5, ne)), "1 vs 2 threads");
+    assert_eq!(one, bits(&traced_with(3, 5, ne)), "1 vs 3 threads");
+    assert_ne!(one, bits(&traced(1, 5)), "the estimators differ");
 }
 
 #[test]

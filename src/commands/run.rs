@@ -33,6 +33,12 @@ pub struct Args {
     /// Seed of the random streams (default: the room file's `seed`).
     #[arg(long)]
     pub seed: Option<u64>,
+    /// How receivers collect the reflected sound: `sphere` (detection
+    /// spheres, the default) or `next-event` (experimental: next-event
+    /// estimation, exact early mirror paths, stratified start directions and
+    /// a late detection sphere that grows; see DEVELOPERS.md for its cost).
+    #[arg(long, default_value = "sphere", value_parser = ["sphere", "next-event"])]
+    pub estimator: String,
     /// Output folder (default: `<room name>-results`).
     #[arg(long)]
     pub out: Option<PathBuf>,
@@ -60,6 +66,9 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     }
     if let Some(s) = args.seed {
         options.seed = s;
+    }
+    if args.estimator == "next-event" {
+        options.estimator = trace::Estimator::NextEvent(trace::NextEventSettings::default());
     }
     let out = args
         .out

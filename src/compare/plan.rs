@@ -11,7 +11,7 @@ use serde::Serialize;
 use super::error::CompareError;
 use super::file::ComparisonFile;
 use super::parameter::Parameter;
-use super::verdict::DEFAULT_NOISE_FACTOR;
+use super::verdict::default_noise_factor;
 use crate::bands::Bands;
 use crate::law::{material_arc, BoundedLaw, LawKind};
 use crate::receiver::default_radius_m;
@@ -21,7 +21,7 @@ use crate::room::{estimates, load_room, material_from_table, Material, Room};
 use crate::trace::{Roulette, TraceOptions};
 
 /// Batches when the comparison file gives none.
-pub const DEFAULT_BATCHES: usize = 10;
+pub const DEFAULT_BATCHES: usize = 20;
 
 /// Band of the echogram and decay charts when the file gives none, Hz.
 pub const DEFAULT_PLOT_BAND_HZ: u32 = 1000;
@@ -420,8 +420,16 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
         }
     }
     parameters.sort();
-    let noise_factor = spec.noise_factor.map_or(DEFAULT_NOISE_FACTOR, |r| r.0);
-    if !(noise_factor.is_finite() && noise_factor > 0.0) {
+    // Pairs per cell of the largest group: laws per variant, variants per
+    // law, the envelope's two ends.
+    let largest_group = laws.len().max(spec.variants.len()).max(2);
+    let family = largest_group * (largest_group - 1) / 2;
+    let noise_factor = spec
+        .noise_factor
+        .map(|r| r.0)
+        .or_else(|| default_noise_factor(batches, family))
+        .unwrap_or(f64::NAN);
+    if !(noise_factor.is_finite() && noise_factor > 0.0) && spec.noise_factor.is_some() {
         problems.add(format!(
             "noise_factor: {noise_factor} must be a positive number of standard errors (2 is usual)"
         ));

@@ -17,14 +17,26 @@
 //! the relative JNDs of EDT, T20 and T30, 5 % of the mean of the two values)
 //! and the noise factor k:
 //! - spread S = |Δ| / J and noise N = k σ / J, both in JNDs;
-//! - **sensitive to the treatment** when S > 1 and S > N: the difference is
-//!   real (beyond k standard errors) and at least one JND;
+//! - **sensitive to the treatment** when S − N > 1: the whole band S ± N
+//!   lies above one JND, so the difference is real and audible;
 //! - **robust** when S + N ≤ 1: even at the top of its noise band the
 //!   difference stays within one JND;
 //! - **within noise** otherwise: the noise band straddles one JND, so the
 //!   Monte Carlo noise hides whether the difference can be heard (trace more
 //!   rays or batches);
 //! - **not available** when a value or its standard error is undefined.
+//!
+//! # The noise factor k
+//! Unless a comparison file fixes it, k is the two-sided Student-t quantile
+//! for B − 1 degrees of freedom (B batches: the jackknife standard error of a
+//! smooth statistic of batch means has B − 1 degrees of freedom) at level
+//! 1 − α/m, with α = 0.05 and m the number of pairs in the largest group
+//! compared (Bonferroni). Bonferroni rather than Holm because each cell
+//! reports one noise band N for all its pairs, and Holm's step-down levels
+//! would give every pair its own band; Bonferroni's band is the widest of
+//! Holm's, so it is the conservative choice (Holm, Scand. J. Statist. 6
+//! (1979) 65–70). The family-wise error is then at most α per cell: the
+//! chance that any pair of the cell has its true difference outside S ± N.
 //!
 //! With more than two runs, the verdict is that of the deciding pair: any
 //! sensitive pair decides (the one with the largest S); otherwise, when every
@@ -35,9 +47,129 @@ use serde::Serialize;
 
 use crate::metrics::Jnd;
 
-/// Default noise factor k: a difference counts as real beyond k standard
-/// errors (2 ≈ a 95 % two-sided normal interval; common practice, no source).
-pub const DEFAULT_NOISE_FACTOR: f64 = 2.0;
+/// Family-wise error allowed per cell of a comparison (common practice, no source).
+pub const FAMILY_WISE_ALPHA: f64 = 0.05;
+
+/// The default noise factor k for `batches` batches and `pairs` pairs per
+/// cell: the Student-t quantile at 1 − α/(2m) for B − 1 degrees of freedom
+/// (see the module docs); `None` below two batches.
+#[must_use]
+pub fn default_noise_factor(batches: usize, pairs: usize) -> Option<f64> {
+    if batches < 2 {
+        return None;
+    }
+    let m = pairs.max(1) as f64;
+    Some(student_t_quantile(
+        1.0 - FAMILY_WISE_ALPHA / (2.0 * m),
+        (batches - 1) as f64,
+    ))
+}
+
+/// Quantile of Student's t distribution with `dof` (> 0) degrees of freedom
+/// at probability `p` in (0.5, 1): the t at which the distribution function,
+/// 1 − ½ I_{ν/(ν+t²)}(ν/2, ½) (Abramowitz & Stegun (1964) 26.7.1 with
+/// 26.5.27), equals p, found by bisection to 1e-12.
+#[must_use]
+pub fn student_t_quantile(p: f64, dof: f64) -> f64 {
+    let upper_tail = |t: f64| 0.5 * regularized_beta(dof / (dof + t * t), 0.5 * dof, 0.5);
+    let target = 1.0 - p;
+    let (mut lo, mut hi) = (0.0_f64, 1.0_f64);
+    while upper_tail(hi) > target && hi < 1e12 {
+        hi *= 2.0;
+    }
+    while hi - lo > 1e-12 * hi.max(1.0) {
+        let mid = 0.5 * (lo + hi);
+        if upper_tail(mid) > target {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
+/// The regularized incomplete beta function I_x(a, b), by its continued
+/// fraction (Press et al., Numerical Recipes, 3rd ed. (2007) §6.4).
+fn regularized_beta(x: f64, a: f64, b: f64) -> f64 {
+    if x <= 0.0 {
+        return 0.0;
+    }
+    if x >= 1.0 {
+        return 1.0;
+    }
+    let ln_front = ln_gamma(a + b) - ln_gamma(a) - ln_gamma(b) + a * x.ln() + b * (1.0 - x).ln();
+    if x < (a + 1.0) / (a + b + 2.0) {
+        ln_front.exp() * beta_fraction(x, a, b) / a
+    } else {
+        1.0 - ln_front.exp() * beta_fraction(1.0 - x, b, a) / b
+    }
+}
+
+/// The continued fraction of the incomplete beta function (modified Lentz).
+fn beta_fraction(x: f64, a: f64, b: f64) -> f64 {
+    const TINY: f64 = 1e-300;
+    let (qab, qap, qam) = (a + b, a + 1.0, a - 1.0);
+    let mut c = 1.0;
+    let mut d = 1.0 - qab * x / qap;
+    if d.abs() < TINY {
+        d = TINY;
+    }
+    d = 1.0 / d;
+    let mut h = d;
+    for m in 1..300 {
+        let m = f64::from(m);
+        let m2 = 2.0 * m;
+        for aa in [
+            m * (b - m) * x / ((qam + m2) * (a + m2)),
+            -(a + m) * (qab + m) * x / ((a + m2) * (qap + m2)),
+        ] {
+            d = 1.0 + aa * d;
+            if d.abs() < TINY {
+                d = TINY;
+            }
+            c = 1.0 + aa / c;
+            if c.abs() < TINY {
+                c = TINY;
+            }
+            d = 1.0 / d;
+            h *= d * c;
+        }
+        if (d * c - 1.0).abs() < 1e-15 {
+            break;
+        }
+    }
+    h
+}
+
+/// ln Γ(x) for x > 0: the Lanczos approximation with g = 7, nine terms
+/// (Lanczos, SIAM J. Numer. Anal. B 1 (1964); coefficients as commonly
+/// published), relative error near 1e-15.
+fn ln_gamma(x: f64) -> f64 {
+    const G: f64 = 7.0;
+    const C: [f64; 9] = [
+        0.999_999_999_999_809_9,
+        676.520_368_121_885_1,
+        -1_259.139_216_722_402_8,
+        771.323_428_777_653_1,
+        -176.615_029_162_140_6,
+        12.507_343_278_686_905,
+        -0.138_571_095_265_720_12,
+        9.984_369_578_019_572e-6,
+        1.505_632_735_149_311_6e-7,
+    ];
+    if x < 0.5 {
+        // Reflection: Γ(x) Γ(1 − x) = π / sin(πx).
+        let pi = std::f64::consts::PI;
+        return (pi / (pi * x).sin()).ln() - ln_gamma(1.0 - x);
+    }
+    let x = x - 1.0;
+    let mut sum = C[0];
+    for (i, c) in C.iter().enumerate().skip(1) {
+        sum += c / (x + i as f64);
+    }
+    let t = x + G + 0.5;
+    0.5 * (2.0 * std::f64::consts::PI).ln() + (x + 0.5) * t.ln() - t + sum.ln()
+}
 
 /// The verdict on a difference (or on the spread of several runs).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
@@ -95,7 +227,7 @@ impl Verdict {
                 "otherwise: the band S ± N straddles one JND, so the Monte Carlo noise ({k} standard errors) hides whether the difference can be heard; trace more rays or batches"
             ),
             Self::Sensitive => format!(
-                "S > 1 and S > N: the difference exceeds both one JND and {k} standard errors, so it is real and large enough to hear"
+                "S − N > 1: even at the bottom of its noise band ({k:.2} standard errors) the difference exceeds one JND, so it is real and large enough to hear"
             ),
             Self::Undefined => {
                 "a value or its standard error is undefined (see the reason given)".to_string()
@@ -109,7 +241,7 @@ impl Verdict {
 pub fn judge(s: f64, n: f64) -> Verdict {
     if !(s.is_finite() && n.is_finite()) {
         Verdict::Undefined
-    } else if s > 1.0 && s > n {
+    } else if s - n > 1.0 {
         Verdict::Sensitive
     } else if s + n <= 1.0 {
         Verdict::Robust
@@ -272,12 +404,40 @@ mod tests {
 
     #[test]
     fn verdict_rule_partitions_the_plane() {
-        assert_eq!(judge(1.5, 0.5), Verdict::Sensitive);
+        assert_eq!(judge(1.6, 0.5), Verdict::Sensitive);
+        assert_eq!(judge(1.4, 0.5), Verdict::WithinNoise);
         assert_eq!(judge(0.4, 0.5), Verdict::Robust);
         assert_eq!(judge(0.6, 0.5), Verdict::WithinNoise);
         assert_eq!(judge(1.5, 2.0), Verdict::WithinNoise);
         assert_eq!(judge(1.0, 0.0), Verdict::Robust);
         assert_eq!(judge(f64::NAN, 0.1), Verdict::Undefined);
+    }
+
+    #[test]
+    fn student_t_quantiles_match_the_tables() {
+        // Two-sided 95 % and Bonferroni levels; table values of Student's t
+        // (Abramowitz & Stegun 1964, Table 26.10; from memory, 3 decimals).
+        for (p, dof, table) in [
+            (0.975, 1.0, 12.706),
+            (0.975, 3.0, 3.182),
+            (0.995, 3.0, 5.841),
+            (0.975, 9.0, 2.262),
+            (0.975, 19.0, 2.093),
+            (0.975, 29.0, 2.045),
+            (0.995, 9.0, 3.250),
+            (0.995, 19.0, 2.861),
+            (0.975, 1e6, 1.960),
+        ] {
+            let t = student_t_quantile(p, dof);
+            assert!(
+                (t - table).abs() < 0.01,
+                "t({p}, {dof}) = {t}, table {table}"
+            );
+        }
+        assert!(default_noise_factor(1, 3).is_none());
+        // More pairs or fewer batches widen the band.
+        let k = |b, m| default_noise_factor(b, m).unwrap();
+        assert!(k(20, 3) > k(20, 1) && k(10, 1) > k(20, 1));
     }
 
     #[test]

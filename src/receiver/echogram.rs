@@ -73,9 +73,14 @@ impl Echogram {
 /// [`ArrivalLog::merge_into`]. Most bins of a chunk stay empty, so keeping
 /// the arrivals is far cheaper than zeroing, filling and merging a full
 /// echogram per chunk.
+///
+/// A log made with [`ArrivalLog::dense`] adds to full echograms at once
+/// instead: for estimators that score at almost every bin (next-event
+/// estimation), where keeping and sorting every arrival costs more.
 #[derive(Clone, Debug, Default)]
 pub struct ArrivalLog {
     arrivals: Vec<Arrival>,
+    dense: Option<Vec<Echogram>>,
 }
 
 #[derive(Clone, Copy, Debug)]
@@ -94,6 +99,17 @@ impl ArrivalLog {
         Self::default()
     }
 
+    /// A log that adds at once to `count` zeroed echograms of `bins` bins of
+    /// `bin_s` seconds. Merging it gives the bits of adding in order to
+    /// those echograms and merging them; appending adds echogram to echogram.
+    #[must_use]
+    pub fn dense(count: usize, bins: usize, bin_s: f64) -> Self {
+        Self {
+            arrivals: Vec::new(),
+            dense: Some(vec![Echogram::new(bins, bin_s); count]),
+        }
+    }
+
     /// Records what [`Echogram::add`] would add to echogram `echogram`, whose
     /// shape is `bins` bins of `bin_s` seconds: fluence `fluence` (J/m²)
     /// arriving at `time_s` with lateral weight `lateral_cos_sq`; arrivals
@@ -108,6 +124,10 @@ impl ArrivalLog {
         fluence: Bands,
         lateral_cos_sq: f64,
     ) {
+        if let Some(dense) = &mut self.dense {
+            dense[echogram].add(time_s, fluence, lateral_cos_sq);
+            return;
+        }
         let bin = (time_s / bin_s) as usize;
         if bin < bins {
             debug_assert!(self.arrivals.len() < u32::MAX as usize);
@@ -122,7 +142,15 @@ impl ArrivalLog {
 
     /// Appends the arrivals of `later`, recorded after these.
     pub fn append(&mut self, mut later: Self) {
-        self.arrivals.append(&mut later.arrivals);
+        match (&mut self.dense, later.dense) {
+            (Some(mine), Some(theirs)) => {
+                for (a, b) in mine.iter_mut().zip(&theirs) {
+                    a.merge(b);
+                }
+            }
+            (None, None) => self.arrivals.append(&mut later.arrivals),
+            _ => panic!("an arrival log cannot append a log of the other kind"),
+        }
     }
 
     /// Number of arrivals recorded.
@@ -143,6 +171,12 @@ impl ArrivalLog {
     /// are summed in recording order first, then added to the bin (bins
     /// without arrivals would have added +0, which changes nothing).
     pub fn merge_into(self, echograms: &mut [Echogram]) {
+        if let Some(dense) = self.dense {
+            for (target, d) in echograms.iter_mut().zip(&dense) {
+                target.merge(d);
+            }
+            return;
+        }
         // (echogram, bin) then recording position: sorting these small keys
         // orders the arrivals like a stable sort by (echogram, bin).
         let mut order: Vec<(u64, u32)> = self

@@ -47,6 +47,44 @@ impl DetectionSphere {
         let leave = (t_closest + half).min(length_m);
         (leave > enter).then_some((0.5 * (enter + leave), leave - enter))
     }
+
+    /// As [`DetectionSphere::chord`] for the part t ∈ [`lo_m`, `hi_m`] of the
+    /// line; for `lo_m` = 0 it equals `chord(origin, direction, hi_m)` bit for bit.
+    #[must_use]
+    pub fn chord_between(
+        &self,
+        origin: DVec3,
+        direction: DVec3,
+        lo_m: f64,
+        hi_m: f64,
+    ) -> Option<(f64, f64)> {
+        let to_centre = self.centre - origin;
+        let t_closest = to_centre.dot(direction);
+        let miss_sq = to_centre.length_squared() - t_closest * t_closest;
+        let r_sq = self.radius_m * self.radius_m;
+        if miss_sq >= r_sq {
+            return None;
+        }
+        let half = (r_sq - miss_sq).sqrt();
+        let enter = (t_closest - half).max(lo_m);
+        let leave = (t_closest + half).min(hi_m);
+        (leave > enter).then_some((0.5 * (enter + leave), leave - enter))
+    }
+}
+
+/// Mean of 1/r² over a ball of radius `radius_m` whose centre lies
+/// `distance_m` (> radius) from the point r is measured from, 1/m².
+///
+/// Derivation (ours): the sphere of radius ρ about the point cuts the ball in
+/// a cap of area π ρ (a² − (ρ − D)²) / D, so ∫ r⁻² dV = (π/D) ∫ (a² − u²)/(D + u) du
+/// over u ∈ [−a, a] = (π/D) [2aD − (D² − a²) ln((D + a)/(D − a))]; divided by
+/// 4/3 π a³. For D ≫ a it tends to (1 + a²/(5D²)) / D².
+#[must_use]
+pub fn mean_inverse_square_over_ball(distance_m: f64, radius_m: f64) -> f64 {
+    let (d, a) = (distance_m, radius_m);
+    debug_assert!(d > a && a > 0.0);
+    let integral = PI / d * (2.0 * a * d - (d * d - a * a) * ((d + a) / (d - a)).ln());
+    integral / (4.0 / 3.0 * PI * a.powi(3))
 }
 
 /// Detection spheres laid out four by four in single precision, so that one

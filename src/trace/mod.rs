@@ -51,12 +51,16 @@ mod options;
 mod ray;
 mod result;
 mod runner;
+mod specular;
 
-pub use options::{Roulette, TraceError, TraceOptions};
+pub use options::{
+    Estimator, NextEventSettings, Roulette, TraceError, TraceOptions, MAX_IMAGE_ORDER,
+};
 pub use ray::{NoLog, QueryLog};
 pub use result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
 pub use runner::{
-    run, run_batches, run_recording_queries, run_with_laws, run_with_progress, RAYS_PER_CHUNK,
+    run, run_batches, run_recording_queries, run_with_laws, run_with_progress, AUTO_LATE_RADIUS_M,
+    RAYS_PER_CHUNK,
 };
 
 #[cfg(doc)]

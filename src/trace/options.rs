@@ -47,6 +47,75 @@ pub struct TraceOptions {
     /// same rays under every law and treatment (common random numbers) and
     /// no two batches share a ray.
     pub first_ray: u64,
+    /// How receivers collect energy: detection spheres alone (the default),
+    /// or the experimental next-event estimator.
+    pub estimator: Estimator,
+}
+
+/// How receivers collect the reflected sound (the direct sound is always exact).
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum Estimator {
+    /// Detection spheres only: a ray counts where it crosses a sphere (the
+    /// reference estimator, kept for checks and studies).
+    Sphere,
+    /// Next-event estimation at every reflection, exact early specular paths
+    /// and a detection sphere that grows late in the decay; see
+    /// [`NextEventSettings`] and the [module docs](super).
+    NextEvent(NextEventSettings),
+}
+
+impl Estimator {
+    /// The name used on the command line and in result files.
+    #[must_use]
+    pub fn name(&self) -> &'static str {
+        match self {
+            Self::Sphere => "sphere",
+            Self::NextEvent(_) => "next-event",
+        }
+    }
+}
+
+impl Default for Estimator {
+    /// Detection spheres: on the rooms measured so far the next-event
+    /// estimator costs more time than it saves variance (DEVELOPERS.md).
+    fn default() -> Self {
+        Self::Sphere
+    }
+}
+
+/// Settings of the next-event estimator.
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
+pub struct NextEventSettings {
+    /// Highest order of the mirror paths evaluated exactly as image sources
+    /// (0: none). Mirror chains of higher order keep sphere detection.
+    pub image_order: usize,
+    /// Pilot rays per source that find the candidate mirror chains (their own
+    /// random streams, independent of the traced rays).
+    pub pilot_rays: usize,
+    /// Radius around a receiver within which a pilot ray's mirror chain
+    /// becomes a candidate image source, m.
+    pub pilot_capture_m: f64,
+    /// Largest detection radius late in the decay, m (capped per receiver
+    /// so the sphere never reaches a wall); `None` keeps the radius fixed.
+    pub late_radius_m: Option<f64>,
+    /// Time after which the detection radius starts to grow, s.
+    pub late_start_s: f64,
+}
+
+/// Highest image order the next-event estimator supports.
+pub const MAX_IMAGE_ORDER: usize = 6;
+
+impl Default for NextEventSettings {
+    fn default() -> Self {
+        Self {
+            image_order: 3,
+            pilot_rays: 50_000,
+            pilot_capture_m: 2.0,
+            late_radius_m: None,
+            late_start_s: 0.1,
+        }
+    }
 }
 
 impl TraceOptions {
@@ -67,6 +136,7 @@ impl TraceOptions {
             receiver_radius_m: None,
             roulette: Some(Roulette::default()),
             first_ray: 0,
+            estimator: Estimator::default(),
         }
     }
 }
@@ -132,6 +202,33 @@ impl TraceOptions {
             if !(r.is_finite() && r > 0.0) {
                 return bad(format!(
                     "receiver radius must be a positive number of metres, got {r}"
+                ));
+            }
+        }
+        if let Estimator::NextEvent(ne) = &self.estimator {
+            if ne.image_order > MAX_IMAGE_ORDER {
+                return bad(format!(
+                    "image order {} is above the supported {MAX_IMAGE_ORDER}",
+                    ne.image_order
+                ));
+            }
+            if !(ne.pilot_capture_m.is_finite() && ne.pilot_capture_m > 0.0) {
+                return bad(format!(
+                    "pilot capture radius must be a positive number of metres, got {}",
+                    ne.pilot_capture_m
+                ));
+            }
+            if let Some(r) = ne.late_radius_m {
+                if !(r.is_finite() && r > 0.0) {
+                    return bad(format!(
+                        "late detection radius must be a positive number of metres, got {r}"
+                    ));
+                }
+            }
+            if !(ne.late_start_s.is_finite() && ne.late_start_s >= 0.0) {
+                return bad(format!(
+                    "late start must be a non-negative number of seconds, got {}",
+                    ne.late_start_s
                 ));
             }
         }

@@ -1,14 +1,17 @@
 //! One ray from its source to its end: the hot loop.
 
+use std::collections::HashSet;
+
 use glam::DVec3;
 
 use super::options::Roulette;
+use super::specular::Chain;
 use crate::accel::{Bvh, Hit};
 use crate::bands::Bands;
 use crate::geometry::Frame;
-use crate::law::ReflectionLaw;
+use crate::law::{Lobe, ReflectionLaw};
 use crate::random::Stream;
-use crate::receiver::{ArrivalLog, SphereSet};
+use crate::receiver::{ArrivalLog, DetectionSphere, DetectionVolume, SphereSet};
 
 /// Distance a reflected ray starts off the wall along the normal, m
 /// (common practice, no source: keeps the next query from finding the same wall).
@@ -44,7 +47,29 @@ pub(super) struct Scene<'a> {
     /// Lateral axis per pair, source-major.
     pub lateral_axes: Vec<DVec3>,
     pub source_positions: Vec<DVec3>,
+    /// Per source, the random rotation of this batch's stratified start
+    /// directions; empty for independent uniform directions.
+    pub start_rotations: Vec<glam::DMat3>,
+    /// The next-event estimator's data; `None` for detection spheres alone.
+    pub next_event: Option<&'a NextEventScene>,
 }
+
+/// What the next-event estimator needs besides the scene (see the
+/// [module docs](super)).
+pub(super) struct NextEventScene {
+    /// Each receiver's detection volume over time.
+    pub volumes: Vec<DetectionVolume>,
+    /// The largest sphere of each volume (the cone that next-event samples).
+    pub largest: Vec<DetectionSphere>,
+    /// Per pair (source-major): the mirror chains evaluated exactly.
+    pub exact_chains: Vec<HashSet<Chain>>,
+    /// Highest order among them (0: none).
+    pub image_order: usize,
+}
+
+/// Salt that gives each ray a second stream for its next-event directions,
+/// so that the traced paths are those of the sphere estimator.
+const NEXT_EVENT_STREAM_SALT: u64 = 0x4E45_5854_5F45_5645; // "NEXT_EVE"
 
 /// What a reflection needs of the triangle hit: its local frame (normal =
 /// the triangle's unit normal, on one side; the tracer turns it toward the
@@ -52,18 +77,24 @@ pub(super) struct Scene<'a> {
 pub(super) struct TriangleShading {
     pub frame: Frame,
     pub law: u32,
+    /// Index of the room surface the triangle belongs to.
+    pub surface: u32,
 }
 
 impl TriangleShading {
     /// The frame of the triangle with unit normal `normal` and, for a
     /// profiled surface, extrusion axis `axis` (its +X then runs along it,
     /// what 1D polar data need).
-    pub fn new(normal: DVec3, axis: Option<DVec3>, law: u32) -> Self {
+    pub fn new(normal: DVec3, axis: Option<DVec3>, law: u32, surface: u32) -> Self {
         let frame = match axis {
             Some(axis) => Frame::from_normal_and_tangent(normal, axis),
             None => Frame::from_normal(normal),
         };
-        Self { frame, law }
+        Self {
+            frame,
+            law,
+            surface,
+        }
     }
 
     /// The frame whose normal faces a ray arriving along `dir`. For the
@@ -71,7 +102,7 @@ impl TriangleShading {
     /// `Frame::from_normal(−normal)` and `from_normal_and_tangent(−normal,
     /// axis)` compute (every product and sum there only changes sign).
     #[inline]
-    fn facing(&self, dir: DVec3) -> Frame {
+    pub fn facing(&self, dir: DVec3) -> Frame {
         let f = self.frame;
         if f.normal.dot(dir) > 0.0 {
             Frame {
@@ -247,7 +278,7 @@ impl Scene<'_> {
             next: bound(k as u64),
             last: bound(k as u64 + 1),
             ray: None,
-            arrivals: ArrivalLog::new(),
+            arrivals: self.new_arrival_log(),
             tally: if k == 0 {
                 std::mem::take(tally)
             } else {
@@ -283,15 +314,34 @@ impl Scene<'_> {
         }
     }
 
+    /// An empty arrival log of the kind this scene's estimator needs.
+    pub fn new_arrival_log(&self) -> ArrivalLog {
+        match self.next_event {
+            Some(_) => ArrivalLog::dense(self.lateral_axes.len(), self.bins, self.bin_s),
+            None => ArrivalLog::new(),
+        }
+    }
+
     /// Ray `index` (source-major) at its source, before its first query.
     fn start_ray(&self, index: u64) -> RayState {
         let source = (index / self.rays_per_source as u64) as usize;
         let mut rng = Stream::new(self.seed, self.first_ray + index);
-        let dir = uniform_sphere(rng.uniform2());
+        let u = rng.uniform2();
+        let dir = match self.start_rotations.get(source) {
+            // Stratified: point j of a randomly rotated spherical Fibonacci set.
+            Some(rotation) => {
+                let j = index % self.rays_per_source as u64;
+                *rotation * fibonacci_sphere(j, self.rays_per_source as u64)
+            }
+            None => uniform_sphere(u),
+        };
         // Wall weights only; the air factor follows from the path length.
         let weight = self.start_weight;
         RayState {
             rng,
+            rain_rng: Stream::new(self.seed ^ NEXT_EVENT_STREAM_SALT, self.first_ray + index),
+            counts: true,
+            chain: Some(Chain::default()),
             pos: self.source_positions[source],
             dir,
             weight,
@@ -328,7 +378,9 @@ impl Scene<'_> {
         let (pos, dir, path_m) = (ray.pos, ray.dir, ray.path_m);
 
         // Receivers count reflected sound only: the direct sound is added exactly.
-        if ray.reflected {
+        if let (true, Some(ne)) = (ray.reflected && ray.counts, self.next_event) {
+            self.cross_volumes(ne, ray, segment_m, arrivals);
+        } else if ray.reflected && ray.counts {
             let weight = ray.weight;
             let first_pair = ray.first_pair;
             self.spheres
@@ -383,10 +435,22 @@ impl Scene<'_> {
         let u_lobe = ray.rng.uniform();
         let u_dir = ray.rng.uniform2();
         let law = &self.laws[shading.law as usize];
+        if let Some(ne) = self.next_event {
+            let point = pos + dir * segment_m + frame.normal * SURFACE_OFFSET_M;
+            self.rain(ne, ray, point, &frame, wo, law.as_ref(), arrivals);
+        }
         let Some(sample) = law.sample(wo, u_lobe, u_dir) else {
             tally.absorbed_rays += 1;
             return false;
         };
+        if self.next_event.is_some() {
+            // Density lobes were counted by next-event estimation above.
+            ray.counts = sample.pdf.is_none();
+            ray.chain = match sample.lobe {
+                Lobe::Mirror => ray.chain.and_then(|c| c.then(shading.surface)),
+                _ => None,
+            };
+        }
         ray.weight *= sample.weight;
         ray.dir = frame.to_world(sample.wi).normalize();
         ray.pos = pos + dir * segment_m + frame.normal * SURFACE_OFFSET_M;
@@ -419,9 +483,149 @@ impl Scene<'_> {
     }
 }
 
+impl Scene<'_> {
+    /// Receiver crossings of the ray's current segment under next-event
+    /// estimation: each receiver's volume, window by window, except the
+    /// receivers whose sphere this mirror chain reaches exactly (see
+    /// [`super::specular`]).
+    fn cross_volumes(
+        &self,
+        ne: &NextEventScene,
+        ray: &RayState,
+        segment_m: f64,
+        arrivals: &mut ArrivalLog,
+    ) {
+        let (pos, dir, path_m) = (ray.pos, ray.dir, ray.path_m);
+        for (k, volume) in ne.volumes.iter().enumerate() {
+            if ne.largest[k].chord(pos, dir, segment_m).is_none() {
+                continue;
+            }
+            let pair = ray.first_pair + k;
+            if let Some(chain) = ray.chain {
+                if chain.order() <= ne.image_order && ne.exact_chains[pair].contains(&chain) {
+                    continue;
+                }
+            }
+            let cos = dir.dot(self.lateral_axes[pair]);
+            volume.for_each_chord(pos, dir, segment_m, path_m, |mid_m, chord_m, inv_volume| {
+                let at_m = path_m + mid_m;
+                let fluence = ray.weight * self.air_factor(at_m) * (chord_m * inv_volume);
+                arrivals.add(
+                    pair,
+                    self.bins,
+                    self.bin_s,
+                    at_m / self.speed_m_s,
+                    fluence,
+                    cos * cos,
+                );
+            });
+        }
+    }
+
+    /// Next-event estimation ("diffuse rain") at a reflection at `point`:
+    /// for each receiver of the ray's source, one direction ω uniform in the
+    /// cone of its largest sphere (solid angle Ω) scores
+    /// W · eval(wo, ω) · Ω · Σ_windows e^(−m L) ℓ_j / V_j, with ℓ_j the chord
+    /// of window j's sphere along ω, clipped to the window's path lengths,
+    /// to the rest of the duration and at the first wall.
+    ///
+    /// Unbiased for what the sphere estimator would count on the next
+    /// segment through the law's density lobes: by the law's contract
+    /// (`eval`), E[weight · g(wi); density lobe] = ∫ eval(wo, ω) g(ω) dω for
+    /// any g, here g = the segment's sphere score, which is zero outside the
+    /// cone; a uniform ω in the cone estimates ∫_cone f g dω as Ω f(ω) g(ω).
+    /// The continuing ray therefore does not count crossings after a density
+    /// lobe (`RayState::counts`).
+    #[allow(clippy::too_many_arguments)]
+    fn rain(
+        &self,
+        ne: &NextEventScene,
+        ray: &mut RayState,
+        point: DVec3,
+        frame: &Frame,
+        wo: DVec3,
+        law: &dyn ReflectionLaw,
+        arrivals: &mut ArrivalLog,
+    ) {
+        let remaining_m = self.max_path_m - ray.path_m;
+        for (k, big) in ne.largest.iter().enumerate() {
+            let to_centre = big.centre - point;
+            let distance_m = to_centre.length();
+            // A sphere wholly behind the surface receives nothing.
+            if to_centre.dot(frame.normal) <= -big.radius_m {
+                continue;
+            }
+            let u = ray.rain_rng.uniform2();
+            let (omega, solid_angle) = if distance_m > big.radius_m {
+                let axis = to_centre / distance_m;
+                let sin_b = big.radius_m / distance_m;
+                let cos_b = (1.0 - sin_b * sin_b).max(0.0).sqrt();
+                let cos_t = 1.0 - u[0] * (1.0 - cos_b);
+                let sin_t = (1.0 - cos_t * cos_t).max(0.0).sqrt();
+                let phi = std::f64::consts::TAU * u[1];
+                let cone = Frame::from_normal(axis);
+                let local = DVec3::new(sin_t * phi.cos(), sin_t * phi.sin(), cos_t);
+                (
+                    cone.to_world(local).normalize(),
+                    std::f64::consts::TAU * (1.0 - cos_b),
+                )
+            } else {
+                (uniform_sphere(u), 4.0 * std::f64::consts::PI)
+            };
+            let wi = frame.to_local(omega);
+            if wi.z <= 0.0 {
+                continue;
+            }
+            let f = law.eval(wo, wi);
+            let score = ray.weight * f;
+            if largest_weight(&score) <= 0.0 {
+                continue;
+            }
+            let Some((mid, chord_len)) = big.chord(point, omega, remaining_m) else {
+                continue;
+            };
+            let leave_m = mid + 0.5 * chord_len;
+            let end_m = match self.bvh.closest_hit(point, omega, leave_m) {
+                Some(wall) if wall.distance_m < leave_m => wall.distance_m,
+                _ => remaining_m,
+            };
+            let pair = ray.first_pair + k;
+            let cos = omega.dot(self.lateral_axes[pair]);
+            let length_m = end_m.min(remaining_m);
+            ne.volumes[k].for_each_chord(
+                point,
+                omega,
+                length_m,
+                ray.path_m,
+                |mid_m, chord_m, inv_volume| {
+                    let at_m = ray.path_m + mid_m;
+                    let fluence =
+                        score * self.air_factor(at_m) * (chord_m * inv_volume * solid_angle);
+                    arrivals.add(
+                        pair,
+                        self.bins,
+                        self.bin_s,
+                        at_m / self.speed_m_s,
+                        fluence,
+                        cos * cos,
+                    );
+                },
+            );
+        }
+    }
+}
+
 /// A ray in flight.
 struct RayState {
     rng: Stream,
+    /// The stream of its next-event directions (never touches `rng`).
+    rain_rng: Stream,
+    /// Whether the current segment counts receiver crossings (false after a
+    /// density lobe under next-event estimation).
+    counts: bool,
+    /// The surfaces of its reflections so far while all were mirror lobes
+    /// (`None` once one was not, or past the longest chain kept).
+    chain: Option<Chain>,
     pos: DVec3,
     dir: DVec3,
     /// Wall weights only; the air factor follows from the path length.
@@ -497,6 +701,32 @@ impl QueryLog for Vec<(DVec3, DVec3)> {
     fn append(&mut self, mut later: Self) {
         Vec::append(self, &mut later);
     }
+}
+
+/// Point `j` of the `n`-point spherical Fibonacci set: z = 1 − (2j + 1)/n,
+/// φ = 2π j / Φ (Φ the golden ratio); equal-area strata (González,
+/// Math. Geosci. 42 (2010) 49–64).
+pub(super) fn fibonacci_sphere(j: u64, n: u64) -> DVec3 {
+    const INV_GOLDEN: f64 = 0.618_033_988_749_894_8;
+    let z = 1.0 - (2 * j + 1) as f64 / n as f64;
+    let r = (1.0 - z * z).max(0.0).sqrt();
+    let phi = std::f64::consts::TAU * (j as f64 * INV_GOLDEN).fract();
+    DVec3::new(r * phi.cos(), r * phi.sin(), z)
+}
+
+/// A uniformly distributed random rotation from three uniform numbers: the
+/// unit quaternion of Shoemake, "Uniform random rotations", Graphics Gems
+/// III (1992). Rotating any fixed direction by it gives a uniform direction.
+pub(super) fn uniform_rotation(u: [f64; 3]) -> glam::DMat3 {
+    let tau = std::f64::consts::TAU;
+    let (a, b) = ((1.0 - u[0]).sqrt(), u[0].sqrt());
+    let q = glam::DQuat::from_xyzw(
+        a * (tau * u[1]).sin(),
+        a * (tau * u[1]).cos(),
+        b * (tau * u[2]).sin(),
+        b * (tau * u[2]).cos(),
+    );
+    glam::DMat3::from_quat(q.normalize())
 }
 
 /// Uniform direction on the unit sphere: z = 1 − 2u₁, φ = 2π u₂ (Archimedes'

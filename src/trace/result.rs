@@ -25,6 +25,9 @@ pub struct ReceiverInfo {
     pub radius_m: f64,
     /// Whether the radius came from the default rule (not the room file or options).
     pub radius_is_default: bool,
+    /// Radius the detection sphere grows to late in the decay under the
+    /// next-event estimator, m (equal to `radius_m` when it does not grow).
+    pub late_radius_m: f64,
 }
 
 /// The echogram of one source at one receiver.

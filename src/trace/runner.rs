@@ -6,14 +6,16 @@ use std::time::Instant;
 use glam::DVec3;
 use rayon::prelude::*;
 
-use super::options::{TraceError, TraceOptions};
-use super::ray::{NoLog, QueryLog, Scene, Tally, TriangleShading};
+use super::options::{Estimator, NextEventSettings, TraceError, TraceOptions};
+use super::ray::{NextEventScene, NoLog, QueryLog, Scene, Tally, TriangleShading};
 use super::result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
+use super::specular::{self, Chain, SpecularPath};
 use crate::accel::Bvh;
 use crate::bands::Bands;
 use crate::law::LawSet;
 use crate::receiver::{
-    default_radius_m, lateral_axis, ArrivalLog, DetectionSphere, Echogram, SphereSet,
+    default_radius_m, lateral_axis, ArrivalLog, DetectionSphere, DetectionVolume, Echogram,
+    SphereSet,
 };
 use crate::room::inside::distance_to_triangle_m;
 use crate::room::{estimates, Room};
@@ -145,6 +147,7 @@ fn run_logged<L: QueryLog + Default + Send>(
             position: r.position,
             radius_m,
             radius_is_default,
+            late_radius_m: radius_m,
         });
     }
     let mut warnings = Vec::new();
@@ -171,6 +174,17 @@ fn run_logged<L: QueryLog + Default + Send>(
         .collect();
 
     let bvh = Bvh::build(&room.triangles);
+    let next_event = match options.estimator {
+        Estimator::Sphere => None,
+        Estimator::NextEvent(settings) => Some(prepare_next_event(
+            room,
+            options,
+            &settings,
+            &bvh,
+            &sources,
+            &mut receivers,
+        )),
+    };
 
     // Direct sound of every pair, from geometry and visibility.
     let mut pairs = Vec::with_capacity(sources.len() * receivers.len());
@@ -246,9 +260,16 @@ fn run_logged<L: QueryLog + Default + Send>(
         let mut scene = build_scene(
             room, options, &bvh, laws, group, &sources, &receivers, &pairs, speed_m_s, air_per_m,
         );
+        scene.next_event = next_event.as_ref().map(|(ne, _)| ne);
         for (b, (batch_pairs, tally, log)) in traced.iter_mut().enumerate() {
             scene.first_ray = options.first_ray + b as u64 * total_rays;
+            if next_event.is_some() {
+                scene.start_rotations = start_rotations(options, scene.first_ray, sources.len());
+            }
             trace_pass(&scene, batch_pairs, tally, log, total_rays, progress);
+            if let Some((_, paths)) = &next_event {
+                specular::add_exact_paths(&scene, paths, batch_pairs);
+            }
         }
     }
     let wall_time_s = started.elapsed().as_secs_f64();
@@ -403,12 +424,12 @@ fn build_scene<'a>(
         .triangles
         .iter()
         .map(|t| {
-            let surface = &room.surfaces[t.surface as usize];
-            let normal = t.cross().try_normalize().unwrap_or(surface.normal);
+            let (normal, axis) = triangle_axes(room, t);
             TriangleShading::new(
                 normal,
-                surface.profile_axis,
+                axis,
                 laws.surface_law[t.surface as usize],
+                t.surface,
             )
         })
         .collect();
@@ -453,7 +474,118 @@ fn build_scene<'a>(
         spheres: SphereSet::new(&spheres, reach_m),
         lateral_axes: pairs.iter().map(|p| p.lateral_axis).collect(),
         source_positions: sources.iter().map(|s| s.position).collect::<Vec<DVec3>>(),
+        start_rotations: Vec::new(),
+        next_event: None,
     }
+}
+
+/// Salt of the streams that draw each batch's rotation of the start directions.
+const ROTATION_STREAM_SALT: u64 = 0x524F_5441_5445_5F53; // "ROTATE_S"
+
+/// Per source, the random rotation of the stratified start directions of the
+/// batch whose first stream index is `first_ray`: drawn from the stream of
+/// (seed ⊕ salt, the source's first ray), so it depends on the batch and
+/// the seed only, and batches are independent.
+fn start_rotations(options: &TraceOptions, first_ray: u64, sources: usize) -> Vec<glam::DMat3> {
+    (0..sources)
+        .map(|s| {
+            let mut rng = crate::random::Stream::new(
+                options.seed ^ ROTATION_STREAM_SALT,
+                first_ray + (s * options.rays) as u64,
+            );
+            let [a, b] = rng.uniform2();
+            super::ray::uniform_rotation([a, b, rng.uniform()])
+        })
+        .collect()
+}
+
+/// A triangle's unit normal (its surface's where it is degenerate) and
+/// extrusion axis: what its reflection frame is built from.
+fn triangle_axes(room: &Room, t: &crate::room::Triangle) -> (DVec3, Option<DVec3>) {
+    let surface = &room.surfaces[t.surface as usize];
+    let normal = t.cross().try_normalize().unwrap_or(surface.normal);
+    (normal, surface.profile_axis)
+}
+
+/// Fraction of the distance to the nearest wall a growing detection sphere
+/// may reach (common practice, no source: keeps the whole sphere inside).
+const LATE_RADIUS_WALL_FRACTION: f64 = 0.9;
+
+/// Largest automatic late detection radius, m (our choice: beyond it the
+/// spatial averaging of the late fluence spans more than a seat row or two).
+pub const AUTO_LATE_RADIUS_M: f64 = 1.5;
+
+/// The next-event estimator's receiver volumes, exact mirror chains and
+/// their paths (per pair, in chain order), shared by every pass and batch.
+/// Records each receiver's late radius in `receivers`.
+fn prepare_next_event(
+    room: &Room,
+    options: &TraceOptions,
+    settings: &NextEventSettings,
+    bvh: &Bvh,
+    sources: &[SourceInfo],
+    receivers: &mut [ReceiverInfo],
+) -> (NextEventScene, Vec<Vec<(Chain, SpecularPath)>>) {
+    let speed_m_s = room.settings.air.speed_of_sound_m_s();
+    let mut volumes = Vec::with_capacity(receivers.len());
+    for r in receivers.iter_mut() {
+        let early = DetectionSphere::new(r.position, r.radius_m);
+        let wall_m = nearest_surface(room, r.position).map_or(f64::INFINITY, |(_, d)| d);
+        let wanted = settings.late_radius_m.unwrap_or(AUTO_LATE_RADIUS_M);
+        let late = wanted.min(LATE_RADIUS_WALL_FRACTION * wall_m);
+        let volume = DetectionVolume::growing(early, settings.late_start_s * speed_m_s, late);
+        r.late_radius_m = volume.largest().radius_m;
+        volumes.push(volume);
+    }
+    let largest = volumes.iter().map(DetectionVolume::largest).collect();
+    let frames: Vec<crate::geometry::Frame> = room
+        .triangles
+        .iter()
+        .map(|t| {
+            TriangleShading::new(triangle_axes(room, t).0, triangle_axes(room, t).1, 0, 0).frame
+        })
+        .collect();
+    let normals: Vec<DVec3> = room
+        .triangles
+        .iter()
+        .map(|t| triangle_axes(room, t).0)
+        .collect();
+    let source_points: Vec<DVec3> = sources.iter().map(|s| s.position).collect();
+    let receiver_points: Vec<DVec3> = receivers.iter().map(|r| r.position).collect();
+    let candidates = specular::find_candidates(
+        room,
+        bvh,
+        &normals,
+        &source_points,
+        &receiver_points,
+        settings.image_order,
+        settings.pilot_rays,
+        settings.pilot_capture_m,
+        options.seed,
+    );
+    let mut exact_chains = Vec::with_capacity(candidates.len());
+    let mut paths = Vec::with_capacity(candidates.len());
+    for (pair, chains) in candidates.into_iter().enumerate() {
+        let (s, r) = (pair / receivers.len(), pair % receivers.len());
+        let valid: Vec<(Chain, SpecularPath)> = chains
+            .into_iter()
+            .filter_map(|c| {
+                specular::trace_path(room, bvh, &frames, source_points[s], receiver_points[r], &c)
+                    .map(|p| (c, p))
+            })
+            .collect();
+        exact_chains.push(valid.iter().map(|(c, _)| *c).collect());
+        paths.push(valid);
+    }
+    (
+        NextEventScene {
+            volumes,
+            largest,
+            exact_chains,
+            image_order: settings.image_order,
+        },
+        paths,
+    )
 }
 
 /// Traces chunk `chunk`, recording its receiver crossings.
@@ -463,7 +595,7 @@ fn trace_chunk<L: QueryLog + Default>(
     total_rays: u64,
 ) -> (ArrivalLog, Tally, L) {
     let mut log = L::default();
-    let mut arrivals = ArrivalLog::new();
+    let mut arrivals = scene.new_arrival_log();
     let mut tally = Tally::default();
     let first = chunk * RAYS_PER_CHUNK as u64;
     let last = (first + RAYS_PER_CHUNK as u64).min(total_rays);
