@@ -405,7 +405,7 @@ pub fn build_document(
     let verdict_rule = VerdictRule {
         noise_factor: k,
         spread: "S = |difference| / JND; for EDT, T20 and T30 the JND is 5 % of the mean of the two values compared".into(),
-        noise: format!("N = {k} × standard error of the difference / JND"),
+        noise: format!("N = {k:.3} × standard error of the difference / JND"),
         verdicts: Verdict::ALL
             .iter()
             .map(|&v| VerdictText {

@@ -221,10 +221,10 @@ impl Verdict {
     pub fn rule_text(self, k: f64) -> String {
         match self {
             Self::Robust => format!(
-                "S + N ≤ 1: the difference plus {k} standard errors stays within one JND, so the conclusion holds whichever treatment is right"
+                "S + N ≤ 1: the difference plus {k:.2} standard errors stays within one JND, so the conclusion holds whichever treatment is right"
             ),
             Self::WithinNoise => format!(
-                "otherwise: the band S ± N straddles one JND, so the Monte Carlo noise ({k} standard errors) hides whether the difference can be heard; trace more rays or batches"
+                "otherwise: the band S ± N straddles one JND, so the Monte Carlo noise ({k:.2} standard errors) hides whether the difference can be heard; trace more rays or batches"
             ),
             Self::Sensitive => format!(
                 "S − N > 1: even at the bottom of its noise band ({k:.2} standard errors) the difference exceeds one JND, so it is real and large enough to hear"

@@ -34,22 +34,11 @@ impl DetectionSphere {
     /// from `origin`, chord length), both in metres; `None` if it misses.
     #[must_use]
     pub fn chord(&self, origin: DVec3, direction: DVec3, length_m: f64) -> Option<(f64, f64)> {
-        // Closest approach of the infinite line, then clip the chord to the segment.
-        let to_centre = self.centre - origin;
-        let t_closest = to_centre.dot(direction);
-        let miss_sq = to_centre.length_squared() - t_closest * t_closest;
-        let r_sq = self.radius_m * self.radius_m;
-        if miss_sq >= r_sq {
-            return None;
-        }
-        let half = (r_sq - miss_sq).sqrt();
-        let enter = (t_closest - half).max(0.0);
-        let leave = (t_closest + half).min(length_m);
-        (leave > enter).then_some((0.5 * (enter + leave), leave - enter))
+        self.chord_between(origin, direction, 0.0, length_m)
     }
 
     /// As [`DetectionSphere::chord`] for the part t ∈ [`lo_m`, `hi_m`] of the
-    /// line; for `lo_m` = 0 it equals `chord(origin, direction, hi_m)` bit for bit.
+    /// line (closest approach of the infinite line, then the chord clipped).
     #[must_use]
     pub fn chord_between(
         &self,

@@ -58,6 +58,8 @@ pub struct RoomReport {
 pub struct SettingsReport {
     /// Reflection law.
     pub law: String,
+    /// Receiver estimator and its settings (`kind`: `sphere` or `next-event`).
+    pub estimator: crate::trace::Estimator,
     /// Materials traced with the fallback law instead, with the reason.
     pub law_fallbacks: Vec<String>,
     /// Rays per source.
@@ -312,6 +314,7 @@ impl RunReport {
             },
             settings: SettingsReport {
                 law: options.law.name().into(),
+                estimator: options.estimator,
                 law_fallbacks: result.fallbacks.clone(),
                 rays: options.rays,
                 seed: options.seed,

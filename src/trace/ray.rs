@@ -97,22 +97,27 @@ impl TriangleShading {
         }
     }
 
-    /// The frame whose normal faces a ray arriving along `dir`. For the
-    /// other side this is (tangent, −bitangent, −normal), bit for bit what
-    /// `Frame::from_normal(−normal)` and `from_normal_and_tangent(−normal,
-    /// axis)` compute (every product and sum there only changes sign).
+    /// The frame whose normal faces a ray arriving along `dir` (see [`facing`]).
     #[inline]
     pub fn facing(&self, dir: DVec3) -> Frame {
-        let f = self.frame;
-        if f.normal.dot(dir) > 0.0 {
-            Frame {
-                tangent: f.tangent,
-                bitangent: -f.bitangent,
-                normal: -f.normal,
-            }
-        } else {
-            f
+        facing(&self.frame, dir)
+    }
+}
+
+/// `frame` turned so that its normal faces sound travelling along `dir`:
+/// (tangent, −bitangent, −normal) for the other side, bit for bit what
+/// `Frame::from_normal(−normal)` and `from_normal_and_tangent(−normal, axis)`
+/// compute (every product and sum there only changes sign).
+#[inline]
+pub(super) fn facing(frame: &Frame, dir: DVec3) -> Frame {
+    if frame.normal.dot(dir) > 0.0 {
+        Frame {
+            tangent: frame.tangent,
+            bitangent: -frame.bitangent,
+            normal: -frame.normal,
         }
+    } else {
+        *frame
     }
 }
 

@@ -43,7 +43,7 @@ use crate::receiver::DetectionSphere;
 use crate::room::Room;
 
 use super::options::MAX_IMAGE_ORDER;
-use super::ray::Scene;
+use super::ray::{facing, Scene};
 use super::result::PairEchogram;
 
 /// The surfaces a mirror chain reflected from, in order (a fixed-size key).
@@ -251,20 +251,6 @@ pub(super) fn trace_path(
         arrival_dir,
         reflections: hits,
     })
-}
-
-/// The frame of `frame`'s triangle whose normal faces sound travelling along
-/// `dir` (what the tracer's shading does).
-fn facing(frame: &Frame, dir: DVec3) -> Frame {
-    if frame.normal.dot(dir) > 0.0 {
-        Frame {
-            tangent: frame.tangent,
-            bitangent: -frame.bitangent,
-            normal: -frame.normal,
-        }
-    } else {
-        *frame
-    }
 }
 
 /// Adds the exact specular part of one pass to the pair echograms: every

@@ -399,7 +399,7 @@ fn bar_chart(
         size: (1000, 420),
         spec: ChartSpec::Bars(BarChart {
             title: format!(
-                "{who}: {} per band · black: ±{k} standard errors · grey: ±½ JND",
+                "{who}: {} per band · black: ±{k:.2} standard errors · grey: ±½ JND",
                 p.short()
             ),
             y_desc,
