@@ -381,6 +381,10 @@ fn bad_comparison_files_are_refused_with_the_item_named() {
         ),
         ("batches = 1\n", "batches: 1 is too few"),
         (
+            "estimator = \"cone\"\n",
+            "estimator: `cone` is not one of: sphere, next-event",
+        ),
+        (
             "receivers = [\"R9\"]\n",
             "receivers[0]: the room has no receiver named `R9`",
         ),

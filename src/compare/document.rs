@@ -145,6 +145,8 @@ pub struct Settings {
     pub parameters: Vec<Parameter>,
     /// k of the verdict rule.
     pub noise_factor: f64,
+    /// Receiver estimator and its settings.
+    pub estimator: crate::trace::Estimator,
     /// What the single-number values average.
     pub single_number: String,
 }
@@ -399,6 +401,7 @@ pub fn build_document(
         rays_per_chunk: RAYS_PER_CHUNK,
         parameters: plan.parameters.clone(),
         noise_factor: k,
+        estimator: plan.estimator,
         single_number: "arithmetic mean over 500 and 1000 Hz (J_LF: 125 to 1000 Hz), ISO 3382-1:2009 Table A.1".into(),
     };
 

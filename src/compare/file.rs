@@ -21,7 +21,7 @@ pub struct ComparisonFile {
     pub fallback: Option<String>,
     /// Rays per source over all batches (default: the room's `rays`).
     pub rays: Option<usize>,
-    /// Batches the rays are split into for standard errors (default 10).
+    /// Batches the rays are split into for standard errors (default 20).
     pub batches: Option<usize>,
     /// Seed (default: the room's `seed`).
     pub seed: Option<u64>,
@@ -31,8 +31,11 @@ pub struct ComparisonFile {
     pub receivers: Option<Vec<String>>,
     /// Parameters judged (default: all nine).
     pub parameters: Option<Vec<String>>,
-    /// k: a difference is real beyond k standard errors (default 2).
+    /// k: the noise band is ±k standard errors (default: the Student-t
+    /// quantile with a Bonferroni allowance, see `verdict.rs`).
     pub noise_factor: Option<Real>,
+    /// Receiver estimator: `sphere` (default) or `next-event` (experimental).
+    pub estimator: Option<String>,
     /// Band of the echogram and decay charts, Hz (default 1000).
     pub plot_band_hz: Option<u32>,
     /// Materials the variants use, in the room-file format; `polar` is

@@ -18,7 +18,7 @@ use crate::receiver::default_radius_m;
 use crate::room::file::RoomFile;
 use crate::room::inside::distance_to_triangle_m;
 use crate::room::{estimates, load_room, material_from_table, Material, Room};
-use crate::trace::{Roulette, TraceOptions};
+use crate::trace::{Estimator, NextEventSettings, Roulette, TraceOptions};
 
 /// Batches when the comparison file gives none.
 pub const DEFAULT_BATCHES: usize = 20;
@@ -148,6 +148,8 @@ pub struct ComparisonPlan {
     pub parameters: Vec<Parameter>,
     /// k of the verdict rule.
     pub noise_factor: f64,
+    /// Receiver estimator of every run.
+    pub estimator: Estimator,
     /// Band of the echogram and decay charts, Hz.
     pub plot_band_hz: u32,
     /// Configurations, in file order (one "as in the room file" without variants).
@@ -228,6 +230,7 @@ impl ComparisonPlan {
         options.receiver_radius_m = None;
         options.roulette = Some(Roulette::default());
         options.first_ray = (batch * n * self.room.sources.len()) as u64;
+        options.estimator = self.estimator;
         options
     }
 
@@ -434,6 +437,16 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
             "noise_factor: {noise_factor} must be a positive number of standard errors (2 is usual)"
         ));
     }
+    let estimator = match spec.estimator.as_deref() {
+        None | Some("sphere") => Estimator::Sphere,
+        Some("next-event") => Estimator::NextEvent(NextEventSettings::default()),
+        Some(other) => {
+            problems.add(format!(
+                "estimator: `{other}` is not one of: sphere, next-event"
+            ));
+            Estimator::Sphere
+        }
+    };
     let centres = room.settings.bands.centres_hz().to_vec();
     let plot_band_hz = spec
         .plot_band_hz
@@ -736,6 +749,7 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
         bin_s,
         parameters,
         noise_factor,
+        estimator,
         plot_band_hz,
         variants,
         envelope,
