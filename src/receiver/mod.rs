@@ -12,8 +12,5 @@ mod sphere;
 mod volume;
 
 pub use echogram::{ArrivalLog, Echogram};
-pub use sphere::{
-    default_radius_m, lateral_axis, mean_inverse_square_over_ball, DetectionSphere, SphereSet,
-    TARGET_HITS_PER_BIN,
-};
-pub use volume::{sphere_volume_m3, DetectionVolume, VolumeWindow, GROWTH_STEPS};
+pub use sphere::{default_radius_m, lateral_axis, DetectionSphere, SphereSet, TARGET_HITS_PER_BIN};
+pub use volume::{DetectionVolume, VolumeWindow, GROWTH_STEPS};

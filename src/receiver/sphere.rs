@@ -61,21 +61,6 @@ impl DetectionSphere {
     }
 }
 
-/// Mean of 1/r² over a ball of radius `radius_m` whose centre lies
-/// `distance_m` (> radius) from the point r is measured from, 1/m².
-///
-/// Derivation (ours): the sphere of radius ρ about the point cuts the ball in
-/// a cap of area π ρ (a² − (ρ − D)²) / D, so ∫ r⁻² dV = (π/D) ∫ (a² − u²)/(D + u) du
-/// over u ∈ [−a, a] = (π/D) [2aD − (D² − a²) ln((D + a)/(D − a))]; divided by
-/// 4/3 π a³. For D ≫ a it tends to (1 + a²/(5D²)) / D².
-#[must_use]
-pub fn mean_inverse_square_over_ball(distance_m: f64, radius_m: f64) -> f64 {
-    let (d, a) = (distance_m, radius_m);
-    debug_assert!(d > a && a > 0.0);
-    let integral = PI / d * (2.0 * a * d - (d * d - a * a) * ((d + a) / (d - a)).ln());
-    integral / (4.0 / 3.0 * PI * a.powi(3))
-}
-
 /// Detection spheres laid out four by four in single precision, so that one
 /// segment is screened against four spheres with the same instructions. The
 /// screen is conservative: it may pass a sphere the segment misses, never

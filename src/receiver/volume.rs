@@ -11,8 +11,6 @@
 //! t. The radii are capped below the distance to the nearest wall, so no part
 //! of a sphere lies outside the room and V_j = 4/3 π r_j³ holds exactly.
 
-use std::f64::consts::PI;
-
 use glam::DVec3;
 
 use super::DetectionSphere;
@@ -83,12 +81,6 @@ impl DetectionVolume {
         Self { windows }
     }
 
-    /// The windows, in time order.
-    #[must_use]
-    pub fn windows(&self) -> &[VolumeWindow] {
-        &self.windows
-    }
-
     /// The largest sphere of any window (what a segment must reach to count).
     #[must_use]
     pub fn largest(&self) -> DetectionSphere {
@@ -97,12 +89,6 @@ impl DetectionVolume {
             .map(|w| w.sphere)
             .max_by(|a, b| a.radius_m.total_cmp(&b.radius_m))
             .unwrap_or(self.windows[0].sphere)
-    }
-
-    /// Whether the volume is one sphere for all times.
-    #[must_use]
-    pub fn is_fixed(&self) -> bool {
-        self.windows.len() == 1
     }
 
     /// Calls `chord(mid_m, chord_m, inverse_volume_per_m3)` for each window
@@ -129,10 +115,4 @@ impl DetectionVolume {
             }
         }
     }
-}
-
-/// Volume of a sphere of radius `radius_m`, m³.
-#[must_use]
-pub fn sphere_volume_m3(radius_m: f64) -> f64 {
-    4.0 / 3.0 * PI * radius_m.powi(3)
 }

@@ -542,7 +542,8 @@ fn prepare_next_event(
         .triangles
         .iter()
         .map(|t| {
-            TriangleShading::new(triangle_axes(room, t).0, triangle_axes(room, t).1, 0, 0).frame
+            let (normal, axis) = triangle_axes(room, t);
+            TriangleShading::new(normal, axis, 0, 0).frame
         })
         .collect();
     let normals: Vec<DVec3> = room
