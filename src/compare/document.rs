@@ -8,7 +8,7 @@ use std::collections::BTreeMap;
 use serde::Serialize;
 
 use super::engine::{PairOutcome, RunOutcome, RunStats};
-use super::parameter::Parameter;
+use crate::metrics::Parameter;
 use super::plan::{ComparisonPlan, EnvelopeMaterial, Overrides, RunRole};
 use super::provenance::FileRecord;
 use super::verdict::{deciding, difference, Difference, Verdict};
@@ -549,7 +549,7 @@ fn estimate(pair: &PairOutcome, p: Parameter, slot: usize, band_hz: Option<u32>)
     Estimate {
         band_hz,
         value,
-        se: value.and(super::verdict::jackknife_se(&pair.delete_one_of(p, slot))),
+        se: value.and(crate::metrics::jackknife_se(&pair.delete_one_of(p, slot))),
         undefined: value
             .is_none()
             .then(|| pair.undefined_reason(p, slot))

@@ -14,59 +14,13 @@ use std::time::Instant;
 use serde::Serialize;
 
 use super::error::CompareError;
-use super::parameter::Parameter;
 use super::plan::{ComparisonPlan, RunSpec};
-use crate::metrics::BandParameters;
+use crate::metrics::{BandParameters, Parameter};
 use crate::receiver::Echogram;
-use crate::report::{pair_parameters, PairParameters};
-use crate::trace::{self, PairEchogram, TraceResult};
-
-/// Values of every parameter of one pair: index `parameter · (bands + 1) + slot`,
-/// slot `0..bands` a band, slot `bands` the single-number value.
-#[derive(Clone, Debug, PartialEq)]
-pub struct ValueTable {
-    /// Bands.
-    pub bands: usize,
-    /// The values, `None` where undefined.
-    pub values: Vec<Option<f64>>,
-}
-
-impl ValueTable {
-    /// The table of one pair's parameters.
-    #[must_use]
-    pub fn of(parameters: &PairParameters) -> Self {
-        let bands = parameters.bands.len();
-        let mut values = Vec::with_capacity(Parameter::ALL.len() * (bands + 1));
-        for p in Parameter::ALL {
-            values.extend(parameters.bands.iter().map(|b| finite(p.of_band(b))));
-            values.push(finite(p.of_averages(&parameters.averages)));
-        }
-        Self { bands, values }
-    }
-
-    /// Index of `parameter` in `slot` (a band index, or `bands` for the single number).
-    #[must_use]
-    pub fn index(&self, parameter: Parameter, slot: usize) -> usize {
-        let p = Parameter::ALL
-            .iter()
-            .position(|&q| q == parameter)
-            .unwrap_or(0);
-        p * (self.bands + 1) + slot
-    }
-
-    /// The value of `parameter` in `slot`.
-    #[must_use]
-    pub fn get(&self, parameter: Parameter, slot: usize) -> Option<f64> {
-        self.values
-            .get(self.index(parameter, slot))
-            .copied()
-            .flatten()
-    }
-}
-
-fn finite(v: Option<f64>) -> Option<f64> {
-    v.filter(|x| x.is_finite())
-}
+pub use crate::report::batches::ValueTable;
+use crate::report::batches::{delete_one_tables, parameters_with};
+use crate::report::PairParameters;
+use crate::trace::{self, mean_echogram};
 
 /// One source–receiver pair of a run.
 #[derive(Clone, Debug)]
@@ -211,11 +165,9 @@ pub fn trace_run(
         .enumerate()
         .map(|(k, pair)| {
             let all: Vec<&Echogram> = batches.iter().map(|r| &r.echograms[k].echogram).collect();
-            let pooled_echogram = mean_of(&all, None);
-            let pooled = parameters_of(first, pair, &pooled_echogram);
-            let delete_one = (0..all.len())
-                .map(|skip| ValueTable::of(&parameters_of(first, pair, &mean_of(&all, Some(skip)))))
-                .collect();
+            let pooled_echogram = mean_echogram(&all, None);
+            let pooled = parameters_with(first, pair, &pooled_echogram);
+            let delete_one = delete_one_tables(&batches, k);
             PairOutcome {
                 source: first.sources[pair.source].name.clone(),
                 receiver: first.receivers[pair.receiver].name.clone(),
@@ -235,28 +187,4 @@ pub fn trace_run(
         fallbacks: first.fallbacks.clone(),
         wall_time_s: started.elapsed().as_secs_f64(),
     })
-}
-
-/// Mean of the echograms, leaving out `skip`, summed in order.
-fn mean_of(all: &[&Echogram], skip: Option<usize>) -> Echogram {
-    let mut sum = Echogram::new(all[0].bins(), all[0].bin_s);
-    let mut count = 0usize;
-    for (b, e) in all.iter().enumerate() {
-        if Some(b) != skip {
-            sum.merge(e);
-            count += 1;
-        }
-    }
-    let scale = 1.0 / count.max(1) as f64;
-    for v in sum.energy.iter_mut().chain(sum.lateral.iter_mut()) {
-        *v = *v * scale;
-    }
-    sum
-}
-
-/// ISO 3382-1 parameters of `pair` with its echogram replaced by `echogram`.
-fn parameters_of(result: &TraceResult, pair: &PairEchogram, echogram: &Echogram) -> PairParameters {
-    let mut p = pair.clone();
-    p.echogram = echogram.clone();
-    pair_parameters(result, &p)
 }

@@ -17,7 +17,7 @@ pub mod document;
 pub mod engine;
 pub mod error;
 pub mod file;
-pub mod parameter;
+
 pub mod plan;
 pub mod provenance;
 pub mod reproduce;
@@ -30,7 +30,7 @@ use std::time::Instant;
 pub use document::{build_document, ComparisonDocument};
 pub use engine::{trace_run, RunOutcome};
 pub use error::CompareError;
-pub use parameter::Parameter;
+pub use crate::metrics::Parameter;
 pub use plan::{load_comparison, ComparisonPlan, Overrides, RunRole, RunSpec};
 pub use verdict::{Difference, Verdict};
 

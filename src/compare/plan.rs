@@ -10,7 +10,7 @@ use serde::Serialize;
 
 use super::error::CompareError;
 use super::file::ComparisonFile;
-use super::parameter::Parameter;
+use crate::metrics::Parameter;
 use super::verdict::default_noise_factor;
 use crate::bands::Bands;
 use crate::law::{material_arc, BoundedLaw, LawKind};

@@ -45,7 +45,7 @@
 
 use serde::Serialize;
 
-use crate::metrics::Jnd;
+use crate::metrics::{jackknife_se, Jnd};
 
 /// Family-wise error allowed per cell of a comparison (common practice, no source).
 pub const FAMILY_WISE_ALPHA: f64 = 0.05;
@@ -250,25 +250,6 @@ pub fn judge(s: f64, n: f64) -> Verdict {
     }
 }
 
-/// Delete-one jackknife standard error from the delete-one values θ_(b):
-/// se² = (B − 1)/B · Σ (θ_(b) − θ̄)². `None` with fewer than two values or
-/// when any is undefined.
-#[must_use]
-pub fn jackknife_se(delete_one: &[Option<f64>]) -> Option<f64> {
-    let b = delete_one.len();
-    if b < 2 {
-        return None;
-    }
-    let values: Option<Vec<f64>> = delete_one.iter().copied().collect();
-    let values = values?;
-    if values.iter().any(|v| !v.is_finite()) {
-        return None;
-    }
-    let mean = values.iter().sum::<f64>() / b as f64;
-    let sum_sq: f64 = values.iter().map(|v| (v - mean) * (v - mean)).sum();
-    Some(((b as f64 - 1.0) / b as f64 * sum_sq).sqrt())
-}
-
 /// One difference between two runs, in the parameter's unit and in JNDs.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Difference {
@@ -384,23 +365,6 @@ pub fn deciding(differences: &[Difference]) -> Option<(Verdict, usize)> {
 mod tests {
     use super::*;
     use crate::metrics::jnd_of;
-
-    #[test]
-    fn jackknife_of_the_mean_is_the_standard_error_of_the_mean() {
-        // Derived here: for the mean, θ_(b) − θ̄ = (x̄ − x_b)/(B − 1), so the
-        // jackknife gives Σ(x_b − x̄)²/(B(B − 1)) = s²/B exactly.
-        let x = [1.0, 4.0, 2.5, 7.0, 3.0];
-        let b = x.len() as f64;
-        let total: f64 = x.iter().sum();
-        let delete_one: Vec<Option<f64>> =
-            x.iter().map(|v| Some((total - v) / (b - 1.0))).collect();
-        let mean = total / b;
-        let s2 = x.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / (b - 1.0);
-        let se = jackknife_se(&delete_one).unwrap();
-        assert!((se - (s2 / b).sqrt()).abs() < 1e-12, "{se}");
-        assert_eq!(jackknife_se(&[Some(1.0)]), None);
-        assert_eq!(jackknife_se(&[Some(1.0), None]), None);
-    }
 
     #[test]
     fn verdict_rule_partitions_the_plane() {

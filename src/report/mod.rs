@@ -5,6 +5,7 @@
 //! through [`crate::output`] so a crash leaves no half-written file.
 
 mod csv;
+pub mod batches;
 pub mod html;
 mod json;
 mod parameters;

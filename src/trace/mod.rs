@@ -48,6 +48,7 @@
 //!   those of tracing the rays one by one.
 
 mod options;
+mod pool;
 mod ray;
 mod result;
 mod runner;
@@ -56,6 +57,7 @@ mod specular;
 pub use options::{
     Estimator, NextEventSettings, Roulette, TraceError, TraceOptions, MAX_IMAGE_ORDER,
 };
+pub use pool::{mean_echogram, pool};
 pub use ray::{NoLog, QueryLog};
 pub use result::{PairEchogram, ReceiverInfo, SourceInfo, TraceResult, TraceStats};
 pub use runner::{

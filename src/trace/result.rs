@@ -52,8 +52,10 @@ pub struct PairEchogram {
 /// Counters and sums of a run.
 #[derive(Clone, Debug, Default, PartialEq, serde::Serialize)]
 pub struct TraceStats {
-    /// Rays per pass over all sources.
+    /// Rays per pass over all sources (all batches pooled into this result).
     pub rays: u64,
+    /// Batches pooled into this result ([`super::pool`]); 1 for one batch.
+    pub batches: usize,
     /// Tracing passes, one per group of bands that can share rays
     /// ([`crate::law::LawKind::band_groups`]); every band gets `rays` rays.
     pub passes: usize,

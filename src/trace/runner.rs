@@ -129,7 +129,9 @@ fn run_logged<L: QueryLog + Default + Send>(
 
     // Receivers: radius from the options, the room file, or the default rule.
     let volume_m3 = estimates::volume_m3(room);
-    let fallback_radius_m = default_radius_m(volume_m3, options.rays, speed_m_s, options.bin_s);
+    // The rule counts every ray that makes the pooled echogram: all batches.
+    let pooled_rays = options.rays.saturating_mul(batches.max(1) as usize);
+    let fallback_radius_m = default_radius_m(volume_m3, pooled_rays, speed_m_s, options.bin_s);
     let mut receivers = Vec::with_capacity(room.receivers.len());
     for r in &room.receivers {
         let (radius_m, radius_is_default) = match (options.receiver_radius_m, r.radius_m) {
@@ -273,6 +275,13 @@ fn run_logged<L: QueryLog + Default + Send>(
         }
     }
     let wall_time_s = started.elapsed().as_secs_f64();
+    let lost_rays: u64 = traced.iter().map(|(_, t, _)| t.lost_rays).sum();
+    warnings.extend(lost_ray_warning(
+        room,
+        lost_rays,
+        total_rays * batches,
+        groups.len(),
+    ));
     Ok(traced
         .into_iter()
         .map(|(pairs, tally, log)| {
@@ -307,7 +316,7 @@ fn finish(
     pairs: Vec<PairEchogram>,
     sources: &[SourceInfo],
     receivers: &[ReceiverInfo],
-    mut warnings: Vec<String>,
+    warnings: Vec<String>,
     fallbacks: &[String],
     speed_m_s: f64,
     air_per_m: Bands,
@@ -315,6 +324,7 @@ fn finish(
 ) -> TraceResult {
     let stats = TraceStats {
         rays: total_rays,
+        batches: 1,
         passes: groups.len(),
         segments: tally.segments,
         reflections: tally.reflections,
@@ -327,20 +337,6 @@ fn finish(
         energy_at_end_j: tally.energy_at_end_j,
         wall_time_s,
     };
-    if stats.lost_fraction() > LOST_WARNING_FRACTION {
-        let what = if room.settings.open {
-            "the model is open, so this is expected, but check that the openings are where you mean them"
-        } else {
-            "the room is meant to be closed, so the mesh leaks: look for gaps between surfaces or missing faces"
-        };
-        warnings.push(format!(
-            "{} of {} rays ({:.2} %) left the room; {what}",
-            stats.lost_rays,
-            stats.rays,
-            100.0 * stats.lost_fraction()
-        ));
-    }
-
     TraceResult {
         bands: room.settings.bands.clone(),
         bin_s: options.bin_s,
@@ -354,6 +350,35 @@ fn finish(
         warnings,
         fallbacks: fallbacks.to_vec(),
     }
+}
+
+/// The warning for many lost rays, over all batches: `lost` ray passes of
+/// `rays` rays (all sources and batches) traced in `passes` band passes. The
+/// count is in rays as the user asked for them; with several passes, the
+/// mean over the passes.
+fn lost_ray_warning(room: &Room, lost: u64, rays: u64, passes: usize) -> Option<String> {
+    let passes = passes.max(1) as u64;
+    let fraction = lost as f64 / (rays.max(1) * passes) as f64;
+    if fraction <= LOST_WARNING_FRACTION {
+        return None;
+    }
+    let what = if room.settings.open {
+        "the model is open, so this is expected, but check that the openings are where you mean them"
+    } else {
+        "the room is meant to be closed, so the mesh leaks: look for gaps between surfaces or missing faces"
+    };
+    let count = if passes == 1 {
+        format!("{lost} of {rays} rays")
+    } else {
+        format!(
+            "on average {:.0} of {rays} rays in each of the {passes} band passes",
+            lost as f64 / passes as f64
+        )
+    };
+    Some(format!(
+        "{count} ({:.2} %) left the room; {what}",
+        100.0 * fraction
+    ))
 }
 
 /// Label of the surface nearest to `point` and its distance, m (`None` without triangles).

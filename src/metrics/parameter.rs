@@ -1,10 +1,10 @@
-//! The ISO 3382-1 parameters a comparison judges: names in comparison files
-//! and JSON, units for display, and how to read each from a band's
+//! The nine ISO 3382-1 parameters by name: their keys in files and JSON, units
+//! for display, their JNDs, and how to read each from a band's
 //! [`BandParameters`] or the single-number [`Averages`].
 
 use serde::Serialize;
 
-use crate::metrics::{jnd_of, Averages, BandParameters, Jnd};
+use super::{jnd_of, Averages, BandParameters, Jnd};
 
 /// One room parameter.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
