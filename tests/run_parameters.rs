@@ -157,7 +157,7 @@ fn run_writes_parameters_for_every_receiver_and_band() {
     let mut lines = csv.lines();
     assert_eq!(
         lines.next().unwrap(),
-        "source,receiver,band_hz,EDT_s,T20_s,T30_s,C50_db,C80_db,D50,Ts_s,G_db,JLF"
+        polaray::report::PARAMETERS_CSV_HEADER
     );
     assert_eq!(lines.count(), 12);
     for r in receivers {

@@ -154,11 +154,13 @@ fn batches_with_stream_offsets_partition_a_longer_run() {
 }
 
 /// `run_batches` builds the laws once, yet each batch equals a separate run
-/// with the matching `first_ray`, bit for bit.
+/// with the matching `first_ray`, bit for bit (at a fixed radius: the default
+/// radius counts the rays of all batches, see `tests/run_uncertainty.rs`).
 #[test]
 fn batches_in_one_call_equal_separate_runs() {
     let room = room();
     let mut options = TraceOptions::from_room(&room, LawKind::Split);
+    options.receiver_radius_m = Some(0.4);
     options.rays = trace::RAYS_PER_CHUNK + 9;
     options.duration_s = 0.3;
     options.first_ray = 11;

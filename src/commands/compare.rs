@@ -12,8 +12,8 @@ use indicatif::{ProgressBar, ProgressStyle};
 
 use polaray::compare::document::ComparisonDocument;
 use polaray::compare::{
-    self, load_comparison, provenance, reproduce, CompareError, ComparisonPlan, Overrides,
-    Progress, RunSpec, Verdict,
+    self, load_comparison, provenance, reproduce, CompareError, ComparisonPlan, EstimatorChoice,
+    Overrides, Progress, RunSpec, Verdict,
 };
 use polaray::report::{self, html};
 
@@ -35,6 +35,10 @@ pub struct Args {
     /// Seed, instead of the file's.
     #[arg(long, conflicts_with = "reproduce")]
     pub seed: Option<u64>,
+    /// Receiver estimator, instead of the file's: `sphere` (detection
+    /// spheres, the default) or `next-event` (experimental; see DEVELOPERS.md).
+    #[arg(long, value_enum, conflicts_with = "reproduce")]
+    pub estimator: Option<EstimatorChoice>,
     /// Re-run the comparison recorded in this comparison.json (its inputs
     /// must match the recorded SHA-256) and check that every number is
     /// reproduced bit for bit; writes files only with --out.
@@ -84,6 +88,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         rays: args.rays,
         batches: args.batches,
         seed: args.seed,
+        estimator: args.estimator,
     };
     let plan = load_comparison(file, overrides)?;
     for w in &plan.warnings {

@@ -10,8 +10,8 @@ use anyhow::Context;
 use indicatif::{ProgressBar, ProgressStyle};
 
 use polaray::law::LawKind;
-use polaray::metrics;
-use polaray::report;
+use polaray::metrics::{self, Parameter};
+use polaray::report::{self, batches, precision};
 use polaray::room::{self, estimates};
 use polaray::trace::{self, TraceOptions, TraceResult};
 
@@ -33,6 +33,11 @@ pub struct Args {
     /// Seed of the random streams (default: the room file's `seed`).
     #[arg(long)]
     pub seed: Option<u64>,
+    /// Batches the rays are traced in (disjoint random streams); each
+    /// parameter's standard error comes from their spread. The rays must
+    /// split evenly; 1 traces in one piece, without standard errors.
+    #[arg(long, default_value_t = polaray::compare::plan::DEFAULT_BATCHES)]
+    pub batches: usize,
     /// How receivers collect the reflected sound: `sphere` (detection
     /// spheres, the default) or `next-event` (experimental: next-event
     /// estimation, exact early mirror paths, stratified start directions and
@@ -74,23 +79,46 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         .out
         .unwrap_or_else(|| PathBuf::from(format!("{}-results", report::file_safe(&room.name))));
 
+    if args.batches == 0
+        || options.rays < args.batches
+        || !options.rays.is_multiple_of(args.batches)
+    {
+        anyhow::bail!(
+            "{}: {} rays per source do not split into {} equal batches; give --rays as a multiple of {} (e.g. {}) or another --batches",
+            args.room.display(),
+            options.rays,
+            args.batches,
+            args.batches.max(1),
+            options.rays.max(1).div_ceil(args.batches.max(1)) * args.batches.max(1)
+        );
+    }
+    let mut batch_options = options.clone();
+    batch_options.rays = options.rays / args.batches;
+
     let passes = options.law.band_groups(&room).len() as u64;
-    let total_rays = options.rays as u64 * room.sources.len() as u64 * passes;
+    let total_ray_passes = options.rays as u64 * room.sources.len() as u64 * passes;
     let show = !args.quiet && std::io::stderr().is_terminal() && std::io::stdout().is_terminal();
     let bar = if show {
-        let pb = ProgressBar::new(total_rays);
+        let pb = ProgressBar::new(total_ray_passes);
         if let Ok(style) =
-            ProgressStyle::with_template("tracing {bar:40} {pos}/{len} rays, {eta} left")
+            ProgressStyle::with_template("tracing {bar:40} {percent:>3} % of {msg}, {eta} left")
         {
             pb.set_style(style);
         }
+        pb.set_message(match passes {
+            1 => format!("{} rays per source", options.rays),
+            p => format!("{} rays per source in {p} band passes", options.rays),
+        });
         pb
     } else {
         ProgressBar::hidden()
     };
-    let result = trace::run_with_progress(&room, &options, &|n| bar.inc(n as u64))
+    let batches = trace::run_batches(&room, &batch_options, args.batches, &|n| bar.inc(n as u64))
         .with_context(|| format!("{}: cannot trace", args.room.display()))?;
     bar.finish_and_clear();
+    let Some(result) = trace::pool(&batches) else {
+        anyhow::bail!("{}: no batch was traced", args.room.display());
+    };
 
     let mut warnings = loaded.warnings.clone();
     warnings.extend(result.warnings.iter().cloned());
@@ -100,7 +128,31 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     for w in &result.warnings {
         eprintln!("warning: {w}");
     }
-    let parameters = report::run_parameters(&result);
+    let mut parameters = report::run_parameters(&result);
+    if batches.len() > 1 {
+        for (k, p) in parameters.iter_mut().enumerate() {
+            let delete_one = batches::delete_one_tables(&batches, k);
+            p.standard_errors = batches::ValueTable::standard_errors(&delete_one);
+        }
+    }
+    let single_numbers = has_single_numbers(&result);
+    let mut precision = Vec::new();
+    for p in &parameters {
+        let imprecise = precision::imprecise_values(&result, p, single_numbers);
+        let name = report::column_prefix(&result, p.source, p.receiver);
+        let radius_is_default = result.receivers[p.receiver].radius_is_default;
+        precision.extend(precision::precision_warning(
+            &name,
+            &imprecise,
+            options.rays,
+            args.batches,
+            radius_is_default,
+        ));
+    }
+    for w in &precision {
+        eprintln!("warning: {w}");
+    }
+    warnings.extend(precision);
     let written =
         report::write_run_with_parameters(&out, &room, &options, &result, &parameters, warnings)?;
     print_summary(&room, &options, &result);
@@ -114,8 +166,8 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
 fn print_summary(room: &room::Room, options: &TraceOptions, result: &TraceResult) {
     let s = &result.stats;
     println!(
-        "{} · law {} · {} rays per source · seed {}",
-        room.name, options.law, options.rays, options.seed
+        "{} · law {} · {} rays per source in {} batches · seed {}",
+        room.name, options.law, options.rays, s.batches, options.seed
     );
     let volume = estimates::volume_m3(room);
     print!(
@@ -137,63 +189,122 @@ fn print_summary(room: &room::Room, options: &TraceOptions, result: &TraceResult
     );
 }
 
-/// A table cell: the value scaled and rounded, `–` where undefined.
-fn cell(v: Option<f64>, decimals: usize) -> String {
-    v.map_or_else(|| "–".to_string(), |x| format!("{x:.decimals$}"))
+/// Whether the single-number means can be formed: 500 and 1000 Hz traced.
+fn has_single_numbers(result: &TraceResult) -> bool {
+    let centres = result.bands.centres_hz();
+    metrics::averages::MID_BANDS_HZ
+        .iter()
+        .all(|hz| centres.contains(hz))
 }
 
-/// One row of the parameter table: T30, EDT, C80, D50, G, JLF.
-#[allow(clippy::too_many_arguments)]
-fn row(
-    label: &str,
-    t30: Option<f64>,
-    edt: Option<f64>,
-    c80: Option<f64>,
-    d50: Option<f64>,
-    g: Option<f64>,
-    jlf: Option<f64>,
-) {
-    println!(
-        "  {label:<14}{:>7}{:>7}{:>8}{:>6}{:>7}{:>6}",
-        cell(t30, 2),
-        cell(edt, 2),
-        cell(c80, 1),
-        cell(d50, 2),
-        cell(g, 1),
-        cell(jlf, 2)
-    );
+/// The parameters of the console table, in column order.
+const TABLE: [Parameter; 6] = [
+    Parameter::T30,
+    Parameter::Edt,
+    Parameter::C80,
+    Parameter::D50,
+    Parameter::G,
+    Parameter::Jlf,
+];
+
+/// A table cell: value ± standard error in the display unit, `–` where
+/// undefined, `±?` where batches were traced but some delete-one pool has
+/// no value (so no standard error can be formed).
+fn cell(parameter: Parameter, value: Option<f64>, se: Option<f64>, batched: bool) -> String {
+    let (scale, _) = parameter.display_unit();
+    let d = parameter.display_decimals();
+    match (value, se) {
+        (None, _) => "–".to_string(),
+        (Some(v), None) if batched => format!("{:.d$}±?", v * scale),
+        (Some(v), None) => format!("{:.d$}", v * scale),
+        (Some(v), Some(e)) => format!("{:.d$}±{:.d$}", v * scale, e * scale),
+    }
 }
 
 /// The parameter table: one row of single-number means per pair when the
-/// 500 and 1000 Hz bands were traced, else one row per pair and band; the
-/// notes of each pair (e.g. a blocked direct sound) follow.
+/// 500 and 1000 Hz bands were traced, else one row per pair and band; each
+/// value with its standard error over the batches; the notes of each pair
+/// (e.g. a blocked direct sound) follow.
 fn print_parameters(result: &TraceResult, parameters: &[report::PairParameters]) {
-    let centres = result.bands.centres_hz();
-    let means = metrics::averages::MID_BANDS_HZ
-        .iter()
-        .all(|hz| centres.contains(hz));
+    let means = has_single_numbers(result);
     if means {
         println!(
-            "  parameters, means over 500–1000 Hz (JLF 125–1000 Hz); per band in parameters.csv"
+            "  parameters ± standard error, means over 500–1000 Hz (JLF 125–1000 Hz); per band in parameters.csv"
         );
     } else {
-        println!("  parameters per band (500 and 1000 Hz not both traced, so no means)");
+        println!(
+            "  parameters ± standard error per band (500 and 1000 Hz not both traced, so no means)"
+        );
     }
-    println!(
-        "  {:<14}{:>7}{:>7}{:>8}{:>6}{:>7}{:>6}",
-        "receiver", "T30 s", "EDT s", "C80 dB", "D50", "G dB", "JLF"
-    );
+    let mut rows: Vec<(String, Vec<String>)> = Vec::new();
     for p in parameters {
+        let batched = p.standard_errors.is_some();
         let name = report::column_prefix(result, p.source, p.receiver);
         if means {
-            let a = &p.averages;
-            row(&name, a.t30_s, a.edt_s, a.c80_db, a.d50, a.g_db, a.jlf);
+            let slot = p.bands.len();
+            let cells = TABLE
+                .iter()
+                .map(|&q| {
+                    cell(
+                        q,
+                        q.of_averages(&p.averages),
+                        p.standard_error(q, slot),
+                        batched,
+                    )
+                })
+                .collect();
+            rows.push((name, cells));
         } else {
-            for b in &p.bands {
-                let label = format!("{name} {}", b.band_hz);
-                row(&label, b.t30_s, b.edt_s, b.c80_db, b.d50, b.g_db, b.jlf);
+            for (slot, b) in p.bands.iter().enumerate() {
+                let cells = TABLE
+                    .iter()
+                    .map(|&q| cell(q, q.of_band(b), p.standard_error(q, slot), batched))
+                    .collect();
+                rows.push((format!("{name} {}", b.band_hz), cells));
             }
         }
+    }
+    let headings: Vec<String> = TABLE
+        .iter()
+        .map(|q| match q.display_unit().1 {
+            "" => q.short().to_string(),
+            unit => format!("{} {unit}", q.short()),
+        })
+        .collect();
+    let name_width = rows
+        .iter()
+        .map(|(n, _)| n.chars().count())
+        .chain(["receiver".len()])
+        .max()
+        .unwrap_or(8)
+        + 2;
+    let widths: Vec<usize> = (0..TABLE.len())
+        .map(|c| {
+            rows.iter()
+                .map(|(_, cells)| cells[c].chars().count())
+                .chain([headings[c].chars().count()])
+                .max()
+                .unwrap_or(4)
+                + 2
+        })
+        .collect();
+    let line = |name: &str, cells: &[String]| {
+        let mut out = format!("  {name}{}", " ".repeat(name_width - name.chars().count()));
+        for (c, text) in cells.iter().enumerate() {
+            out.push_str(&" ".repeat(widths[c] - text.chars().count()));
+            out.push_str(text);
+        }
+        println!("{out}");
+    };
+    line("receiver", &headings);
+    for (name, cells) in &rows {
+        line(name, cells);
+    }
+    if rows
+        .iter()
+        .any(|(_, cells)| cells.iter().any(|c| c.ends_with("±?")))
+    {
+        println!("  ±?: the value is undefined without some batch, so it has no standard error (too noisy to trust)");
     }
     for p in parameters {
         for n in &p.notes {

@@ -8,10 +8,10 @@ use std::collections::BTreeMap;
 use serde::Serialize;
 
 use super::engine::{PairOutcome, RunOutcome, RunStats};
-use crate::metrics::Parameter;
 use super::plan::{ComparisonPlan, EnvelopeMaterial, Overrides, RunRole};
 use super::provenance::FileRecord;
 use super::verdict::{deciding, difference, Difference, Verdict};
+use crate::metrics::Parameter;
 use crate::metrics::{Jnd, JND_TABLE};
 use crate::trace::{Roulette, RAYS_PER_CHUNK};
 

@@ -27,11 +27,11 @@ use crate::report::ReportError;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
+pub use crate::metrics::Parameter;
 pub use document::{build_document, ComparisonDocument};
 pub use engine::{trace_run, RunOutcome};
 pub use error::CompareError;
-pub use crate::metrics::Parameter;
-pub use plan::{load_comparison, ComparisonPlan, Overrides, RunRole, RunSpec};
+pub use plan::{load_comparison, ComparisonPlan, EstimatorChoice, Overrides, RunRole, RunSpec};
 pub use verdict::{Difference, Verdict};
 
 /// The JSON schema of `comparison.json` (draft 2020-12).

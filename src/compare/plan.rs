@@ -10,10 +10,10 @@ use serde::Serialize;
 
 use super::error::CompareError;
 use super::file::ComparisonFile;
-use crate::metrics::Parameter;
 use super::verdict::default_noise_factor;
 use crate::bands::Bands;
 use crate::law::{material_arc, BoundedLaw, LawKind};
+use crate::metrics::Parameter;
 use crate::receiver::default_radius_m;
 use crate::room::file::RoomFile;
 use crate::room::inside::distance_to_triangle_m;
@@ -35,6 +35,30 @@ pub struct Overrides {
     pub batches: Option<usize>,
     /// Seed.
     pub seed: Option<u64>,
+    /// Receiver estimator, instead of the file's.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub estimator: Option<EstimatorChoice>,
+}
+
+/// The receiver estimators by name, as comparison files and `--estimator` give them.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, serde::Deserialize, clap::ValueEnum)]
+#[serde(rename_all = "kebab-case")]
+pub enum EstimatorChoice {
+    /// Detection spheres (the reference).
+    Sphere,
+    /// The experimental next-event estimator with its default settings.
+    NextEvent,
+}
+
+impl EstimatorChoice {
+    /// The estimator with its default settings.
+    #[must_use]
+    pub fn estimator(self) -> Estimator {
+        match self {
+            Self::Sphere => Estimator::Sphere,
+            Self::NextEvent => Estimator::NextEvent(NextEventSettings::default()),
+        }
+    }
 }
 
 /// One configuration of the room: the variant's replacements applied.
@@ -369,7 +393,7 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
     let seed = overrides.seed.or(spec.seed).unwrap_or(room.settings.seed);
     if batches < 2 {
         problems.add(format!(
-            "batches: {batches} is too few; standard errors need at least 2 batches (10 is a good start)"
+            "batches: {batches} is too few; standard errors need at least 2 batches (20, the default, gives a stable one)"
         ));
     } else if rays_per_source < batches || !rays_per_source.is_multiple_of(batches) {
         problems.add(format!(
@@ -437,10 +461,11 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
             "noise_factor: {noise_factor} must be a positive number of standard errors (2 is usual)"
         ));
     }
-    let estimator = match spec.estimator.as_deref() {
-        None | Some("sphere") => Estimator::Sphere,
-        Some("next-event") => Estimator::NextEvent(NextEventSettings::default()),
-        Some(other) => {
+    let estimator = match (overrides.estimator, spec.estimator.as_deref()) {
+        (Some(choice), _) => choice.estimator(),
+        (None, None | Some("sphere")) => Estimator::Sphere,
+        (None, Some("next-event")) => Estimator::NextEvent(NextEventSettings::default()),
+        (None, Some(other)) => {
             problems.add(format!(
                 "estimator: `{other}` is not one of: sphere, next-event"
             ));

@@ -91,6 +91,26 @@ impl DetectionVolume {
             .unwrap_or(self.windows[0].sphere)
     }
 
+    /// The largest sphere that a line through a point at distance
+    /// `distance_m` from the centre can score with, when that point lies at
+    /// path length `path_m`: window j counts only along path lengths within
+    /// [path + D − r_j, path + D + r_j] (the sphere's chord) that also lie in
+    /// the window, so windows the ray cannot reach in time are left out.
+    /// `None` when no window can be reached.
+    #[must_use]
+    pub fn reachable_sphere(&self, path_m: f64, distance_m: f64) -> Option<DetectionSphere> {
+        self.windows
+            .iter()
+            .filter(|w| {
+                let r = w.sphere.radius_m;
+                let near = path_m + (distance_m - r).max(0.0);
+                let far = path_m + distance_m + r;
+                w.start_path_m < far && w.end_path_m > near
+            })
+            .map(|w| w.sphere)
+            .max_by(|a, b| a.radius_m.total_cmp(&b.radius_m))
+    }
+
     /// Calls `chord(mid_m, chord_m, inverse_volume_per_m3)` for each window
     /// the segment `origin + t·direction`, t ∈ [0, `length_m`], crosses
     /// inside the window's path lengths, where the segment's origin lies at
@@ -114,5 +134,24 @@ impl DetectionVolume {
                 chord(mid, len, w.sphere.inverse_volume_per_m3);
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn only_windows_reachable_in_time_set_the_cone() {
+        // Early 0.2 m until 10 m of path, then growing to 1.4 m.
+        let v = DetectionVolume::growing(DetectionSphere::new(DVec3::ZERO, 0.2), 10.0, 1.4);
+        // 3 m away at path 1 m: arrives near 4 m, only the early sphere counts.
+        assert_eq!(v.reachable_sphere(1.0, 3.0).unwrap().radius_m, 0.2);
+        // Late in the decay the largest sphere counts.
+        assert_eq!(v.reachable_sphere(30.0, 3.0).unwrap().radius_m, 1.4);
+        // Across the first step (10 m): both the early and the first grown
+        // sphere can be reached; the larger sets the cone.
+        let first_step = 0.2 + 1.2 / GROWTH_STEPS as f64;
+        assert!((v.reachable_sphere(6.9, 3.0).unwrap().radius_m - first_step).abs() < 1e-12);
     }
 }

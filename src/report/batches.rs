@@ -82,7 +82,10 @@ pub fn delete_one_tables(batches: &[TraceResult], pair: usize) -> Vec<ValueTable
     let Some(first) = batches.first() else {
         return Vec::new();
     };
-    let all: Vec<&Echogram> = batches.iter().map(|r| &r.echograms[pair].echogram).collect();
+    let all: Vec<&Echogram> = batches
+        .iter()
+        .map(|r| &r.echograms[pair].echogram)
+        .collect();
     (0..all.len())
         .map(|skip| {
             ValueTable::of(&parameters_with(

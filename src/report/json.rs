@@ -13,7 +13,7 @@ use crate::trace::{Roulette, TraceOptions, TraceResult};
 
 use super::csv::{column_prefix, EchogramKind};
 use super::parameters::{run_parameters, PairParameters, PARAMETERS_CSV_FILE};
-use crate::metrics::{Averages, BandParameters};
+use crate::metrics::{Averages, BandParameters, Parameter};
 
 /// The note every result carries.
 pub const ADVISORY: &str = "Results are advisory: a geometric model with stated assumptions. Local codes, standards and licensed professional practice decide.";
@@ -62,8 +62,13 @@ pub struct SettingsReport {
     pub estimator: crate::trace::Estimator,
     /// Materials traced with the fallback law instead, with the reason.
     pub law_fallbacks: Vec<String>,
-    /// Rays per source.
+    /// Rays per source (all batches together).
     pub rays: usize,
+    /// Batches the rays were traced in (disjoint streams); the standard
+    /// errors come from their spread.
+    pub batches: usize,
+    /// How the standard errors were formed.
+    pub standard_errors: &'static str,
     /// Seed.
     pub seed: u64,
     /// Band centres, Hz.
@@ -93,8 +98,10 @@ pub struct SettingsReport {
 /// Stats section.
 #[derive(Debug, Serialize)]
 pub struct StatsReport {
-    /// Rays per pass over all sources (every band gets this many).
+    /// Rays per pass over all sources and batches (every band gets this many).
     pub rays: u64,
+    /// Batches pooled.
+    pub batches: usize,
     /// Tracing passes: one per group of bands that share rays.
     pub passes: usize,
     /// Segments traced (all passes).
@@ -116,6 +123,9 @@ pub struct StatsReport {
     /// Wall-clock time, s.
     pub wall_time_s: f64,
 }
+
+/// How `standard_errors` in `result.json` are formed.
+pub const STANDARD_ERROR_METHOD: &str = "delete-one jackknife over the batches: se² = (B − 1)/B Σ (θ_(b) − θ̄)², θ_(b) the parameter of the pool without batch b (Efron & Tibshirani 1993, ch. 11); none for one batch";
 
 /// One band of a pair's ISO 3382-1 parameters: exactly the fields of
 /// `parameters.csv`, `null` where undefined with the reason in `undefined`.
@@ -152,6 +162,10 @@ pub struct BandReport {
     pub jlf: Option<f64>,
     /// Why each `null` value is undefined, keyed by field name.
     pub undefined: BTreeMap<String, String>,
+    /// Standard error of each value over the batches, same unit, keyed by
+    /// field name (absent for one batch or an undefined value).
+    #[serde(skip_serializing_if = "BTreeMap::is_empty")]
+    pub standard_errors: BTreeMap<String, f64>,
 }
 
 impl BandReport {
@@ -170,8 +184,17 @@ impl BandReport {
             g_db: b.g_db,
             jlf: b.jlf,
             undefined: b.undefined.clone(),
+            standard_errors: BTreeMap::new(),
         }
     }
+}
+
+/// The standard errors of `p` in `slot`, keyed by field name.
+fn standard_error_map(p: &PairParameters, slot: usize) -> BTreeMap<String, f64> {
+    Parameter::ALL
+        .into_iter()
+        .filter_map(|q| Some((q.key().to_string(), p.standard_error(q, slot)?)))
+        .collect()
 }
 
 /// One receiver as heard from one source. `receivers` holds one entry per
@@ -194,6 +217,10 @@ pub struct ReceiverReport {
     /// Single-number means: EDT, T20, T30, C50, C80, D50, Ts and G over
     /// 500–1000 Hz, JLF over 125–1000 Hz (ISO 3382-1:2009, Table A.1).
     pub averages: Averages,
+    /// Standard errors of the single-number means over the batches, keyed
+    /// by field name (absent for one batch).
+    #[serde(skip_serializing_if = "BTreeMap::is_empty")]
+    pub averages_standard_errors: BTreeMap<String, f64>,
     /// Notes on this pair: a blocked direct sound, doubtful fits per band.
     pub notes: Vec<String>,
 }
@@ -317,6 +344,8 @@ impl RunReport {
                 estimator: options.estimator,
                 law_fallbacks: result.fallbacks.clone(),
                 rays: options.rays,
+                batches: result.stats.batches,
+                standard_errors: STANDARD_ERROR_METHOD,
                 seed: options.seed,
                 bands_hz: result.bands.centres_hz().to_vec(),
                 bin_s: result.bin_s,
@@ -337,6 +366,7 @@ impl RunReport {
             },
             stats: StatsReport {
                 rays: result.stats.rays,
+                batches: result.stats.batches,
                 passes: result.stats.passes,
                 segments: result.stats.segments,
                 reflections: result.stats.reflections,
@@ -374,8 +404,17 @@ impl RunReport {
                         } else {
                             "room file or options"
                         },
-                        bands: p.bands.iter().map(BandReport::from_parameters).collect(),
+                        bands: p
+                            .bands
+                            .iter()
+                            .enumerate()
+                            .map(|(slot, b)| BandReport {
+                                standard_errors: standard_error_map(p, slot),
+                                ..BandReport::from_parameters(b)
+                            })
+                            .collect(),
                         averages: p.averages.clone(),
+                        averages_standard_errors: standard_error_map(p, p.bands.len()),
                         notes,
                     }
                 })

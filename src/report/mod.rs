@@ -4,12 +4,13 @@
 //! only turn a [`TraceResult`](crate::trace::TraceResult) into files, each
 //! through [`crate::output`] so a crash leaves no half-written file.
 
-mod csv;
 pub mod batches;
+mod csv;
 pub mod html;
 mod json;
 mod parameters;
 mod plot;
+pub mod precision;
 
 use std::path::PathBuf;
 

@@ -11,14 +11,14 @@
 use std::fmt::Write as _;
 use std::path::Path;
 
-use crate::metrics::{self, Averages, BandParameters, DecayPanel, EchogramBand};
+use super::batches::ValueTable;
+use crate::metrics::{self, Averages, BandParameters, DecayPanel, EchogramBand, Parameter};
 use crate::trace::{PairEchogram, TraceResult};
 
 use super::{file_safe, ReportError};
 
-/// Header of `parameters.csv`.
-pub const PARAMETERS_CSV_HEADER: &str =
-    "source,receiver,band_hz,EDT_s,T20_s,T30_s,C50_db,C80_db,D50,Ts_s,G_db,JLF";
+/// Header of `parameters.csv`: the values, then their standard errors.
+pub const PARAMETERS_CSV_HEADER: &str = "source,receiver,band_hz,EDT_s,T20_s,T30_s,C50_db,C80_db,D50,Ts_s,G_db,JLF,EDT_s_se,T20_s_se,T30_s_se,C50_db_se,C80_db_se,D50_se,Ts_s_se,G_db_se,JLF_se";
 
 /// The file name of the parameter table.
 pub const PARAMETERS_CSV_FILE: &str = "parameters.csv";
@@ -36,6 +36,18 @@ pub struct PairParameters {
     pub averages: Averages,
     /// Things to know about this pair, e.g. that the direct sound is blocked.
     pub notes: Vec<String>,
+    /// Jackknife standard error of every value over the batches
+    /// ([`super::batches`]), in the values' units; `None` for one batch.
+    pub standard_errors: Option<ValueTable>,
+}
+
+impl PairParameters {
+    /// Standard error of `parameter` in `slot` (a band index, or the band
+    /// count for the single-number value), same unit as the value.
+    #[must_use]
+    pub fn standard_error(&self, parameter: Parameter, slot: usize) -> Option<f64> {
+        self.standard_errors.as_ref()?.get(parameter, slot)
+    }
 }
 
 /// Computes the parameters of one pair from its energy and lateral echograms,
@@ -73,6 +85,7 @@ pub fn pair_parameters(result: &TraceResult, pair: &PairEchogram) -> PairParamet
         bands,
         averages,
         notes,
+        standard_errors: None,
     }
 }
 
@@ -105,7 +118,8 @@ fn csv_value(v: Option<f64>) -> String {
 /// The text of `parameters.csv`: [`PARAMETERS_CSV_HEADER`], then one row per
 /// pair and band (pairs source-major, bands ascending); times in s, levels in
 /// dB, D50 and JLF as ratios; an empty cell where a value is undefined (the
-/// reason is in `result.json`).
+/// reason is in `result.json`). The `_se` columns hold each value's standard
+/// error over the batches, empty for a run traced in one batch.
 #[must_use]
 pub fn parameters_csv(result: &TraceResult, parameters: &[PairParameters]) -> String {
     let mut out = String::from(PARAMETERS_CSV_HEADER);
@@ -113,13 +127,15 @@ pub fn parameters_csv(result: &TraceResult, parameters: &[PairParameters]) -> St
     for p in parameters {
         let source = csv_field(&result.sources[p.source].name);
         let receiver = csv_field(&result.receivers[p.receiver].name);
-        for b in &p.bands {
+        for (slot, b) in p.bands.iter().enumerate() {
             let _ = write!(out, "{source},{receiver},{}", b.band_hz);
-            for v in [
-                b.edt_s, b.t20_s, b.t30_s, b.c50_db, b.c80_db, b.d50, b.ts_s, b.g_db, b.jlf,
-            ] {
+            for parameter in Parameter::ALL {
                 out.push(',');
-                out.push_str(&csv_value(v));
+                out.push_str(&csv_value(parameter.of_band(b)));
+            }
+            for parameter in Parameter::ALL {
+                out.push(',');
+                out.push_str(&csv_value(p.standard_error(parameter, slot)));
             }
             out.push('\n');
         }

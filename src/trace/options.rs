@@ -97,7 +97,9 @@ pub struct NextEventSettings {
     /// becomes a candidate image source, m.
     pub pilot_capture_m: f64,
     /// Largest detection radius late in the decay, m (capped per receiver
-    /// so the sphere never reaches a wall); `None` keeps the radius fixed.
+    /// so the sphere never reaches a wall); `None` takes
+    /// [`super::AUTO_LATE_RADIUS_M`]. A value at or below a receiver's own
+    /// radius keeps that receiver's radius fixed.
     pub late_radius_m: Option<f64>,
     /// Time after which the detection radius starts to grow, s.
     pub late_start_s: f64,

@@ -529,7 +529,9 @@ impl Scene<'_> {
 
     /// Next-event estimation ("diffuse rain") at a reflection at `point`:
     /// for each receiver of the ray's source, one direction ω uniform in the
-    /// cone of its largest sphere (solid angle Ω) scores
+    /// cone of the largest sphere the path can reach in time (solid angle Ω,
+    /// [`DetectionVolume::reachable_sphere`]; spheres of other windows score
+    /// nothing along it) scores
     /// W · eval(wo, ω) · Ω · Σ_windows e^(−m L) ℓ_j / V_j, with ℓ_j the chord
     /// of window j's sphere along ω, clipped to the window's path lengths,
     /// to the rest of the duration and at the first wall.
@@ -553,9 +555,15 @@ impl Scene<'_> {
         arrivals: &mut ArrivalLog,
     ) {
         let remaining_m = self.max_path_m - ray.path_m;
-        for (k, big) in ne.largest.iter().enumerate() {
-            let to_centre = big.centre - point;
+        for (k, volume) in ne.volumes.iter().enumerate() {
+            let to_centre = ne.largest[k].centre - point;
             let distance_m = to_centre.length();
+            // The cone of the largest sphere this path can reach in time:
+            // a cone wider than needed only wastes samples.
+            let Some(big) = volume.reachable_sphere(ray.path_m, distance_m) else {
+                continue;
+            };
+            let big = &big;
             // A sphere wholly behind the surface receives nothing.
             if to_centre.dot(frame.normal) <= -big.radius_m {
                 continue;
