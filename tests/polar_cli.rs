@@ -453,3 +453,26 @@ fn hemispherical_data_use_area_weights_and_plot_the_plane_of_incidence() {
         .join("hemi-polar/polar-2000hz-inc30-az0.png")
         .exists());
 }
+
+#[test]
+fn a_closed_stdout_neither_panics_nor_loses_the_files() {
+    // `polaray polar … | head -1`: the reader goes away; the command must
+    // still write its files and exit 0, without a panic message.
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("res");
+    let mut child = std::process::Command::new(assert_cmd::cargo::cargo_bin("polaray"))
+        .args(["polar"])
+        .arg(data("demo-qrd.toml"))
+        .arg("--out")
+        .arg(&out)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    drop(child.stdout.take());
+    let output = child.wait_with_output().unwrap();
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(output.status.success(), "{:?}: {stderr}", output.status);
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    assert!(std::fs::read_dir(&out).unwrap().count() > 0);
+}

@@ -176,7 +176,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
             let _ = writeln!(text, "  {} Hz warning: {w}", p.band_hz);
         }
     }
-    print!("{text}");
+    out!("{text}");
 
     if let Some(json_path) = &args.json {
         let doc = ReportJson {
@@ -193,7 +193,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         let bytes = serde_json::to_vec_pretty(&doc)?;
         write_atomic(json_path, &bytes)
             .with_context(|| format!("{}: cannot write the JSON results", json_path.display()))?;
-        println!("wrote {}", json_path.display());
+        outln!("wrote {}", json_path.display());
     }
     if let Some(dir) = &args.out {
         let panels: Vec<DecayPanel<'_>> = analysis
@@ -211,7 +211,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
             &format!("Decay curves: {}", args.file.display()),
             &panels,
         )?;
-        println!("wrote {}", path.display());
+        outln!("wrote {}", path.display());
     }
     Ok(ExitCode::SUCCESS)
 }

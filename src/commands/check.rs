@@ -160,9 +160,9 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
                 problems: Vec::new(),
             };
             if args.json {
-                println!("{}", serde_json::to_string_pretty(&report)?);
+                outln!("{}", serde_json::to_string_pretty(&report)?);
             } else {
-                print!("{}", render_text(&report));
+                out!("{}", render_text(&report));
             }
             Ok(ExitCode::SUCCESS)
         }
@@ -175,7 +175,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
                     warnings: Vec::new(),
                     problems: err.problems.clone(),
                 };
-                println!("{}", serde_json::to_string_pretty(&report)?);
+                outln!("{}", serde_json::to_string_pretty(&report)?);
             }
             let count = err.problems.len();
             let mut message = format!(

@@ -111,7 +111,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     }
     let written = write_all(&out, &doc, &outcomes)?;
     print_summary(&doc);
-    println!(
+    outln!(
         "  traced {} runs in {:.1} s; wrote {} files to {}",
         doc.runs.len(),
         doc.timings.total_s,
@@ -119,7 +119,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         out.display()
     );
     for c in &doc.cautions {
-        println!("  {c}");
+        outln!("  {c}");
     }
     Ok(ExitCode::SUCCESS)
 }
@@ -136,7 +136,7 @@ fn write_all(
 }
 
 fn print_plan(plan: &ComparisonPlan) {
-    println!(
+    outln!(
         "{} · room {} · {} runs · {} rays per source in {} batches · seed {}",
         plan.name,
         plan.room.name,
@@ -146,13 +146,13 @@ fn print_plan(plan: &ComparisonPlan) {
         plan.seed
     );
     if let Some(note) = &plan.envelope_note {
-        println!("  no s-only envelope: {note}");
+        outln!("  no s-only envelope: {note}");
     }
 }
 
 /// Counts of verdicts per group, single-number values only.
 fn print_summary(doc: &ComparisonDocument) {
-    println!("  verdicts on single-number values (robust / within noise / sensitive / n.a.):");
+    outln!("  verdicts on single-number values (robust / within noise / sensitive / n.a.):");
     for s in &doc.spreads {
         let mut counts = [0usize; 4];
         for row in s.rows.iter().filter(|r| r.band_hz.is_none()) {
@@ -162,9 +162,13 @@ fn print_summary(doc: &ComparisonDocument) {
                 .unwrap_or(3);
             counts[i] += 1;
         }
-        println!(
+        outln!(
             "  {:<44} {:>3} / {:>3} / {:>3} / {:>3}",
-            s.id, counts[0], counts[1], counts[2], counts[3]
+            s.id,
+            counts[0],
+            counts[1],
+            counts[2],
+            counts[3]
         );
     }
 }
@@ -197,7 +201,7 @@ fn reproduce_run(
             env!("CARGO_PKG_VERSION")
         );
     }
-    println!(
+    outln!(
         "re-running {} (inputs match their recorded SHA-256)",
         record.comparison_file.display()
     );
@@ -206,20 +210,20 @@ fn reproduce_run(
     progress.0.finish_and_clear();
     if let Some(out) = out {
         let n = write_all(out, &doc, &outcomes)?;
-        println!("  wrote {n} files to {}", out.display());
+        outln!("  wrote {n} files to {}", out.display());
     }
     let now = serde_json::to_value(&doc).context("cannot serialize the re-run")?;
     let (count, diffs) = reproduce::number_differences(&record.document, &now);
     if diffs.is_empty() {
-        println!("  reproduced: all {count} numbers identical, bit for bit");
+        outln!("  reproduced: all {count} numbers identical, bit for bit");
         Ok(ExitCode::SUCCESS)
     } else {
-        println!(
+        outln!(
             "  NOT reproduced: {} of {count} numbers differ; the first ones:",
             diffs.len()
         );
         for d in diffs.iter().take(12) {
-            println!("    {d}");
+            outln!("    {d}");
         }
         Ok(ExitCode::FAILURE)
     }

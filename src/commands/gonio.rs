@@ -165,7 +165,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         let written = super::polar::write_file_charts(&file, dir)
             .with_context(|| format!("{}: cannot draw the charts", dir.display()))?;
         if !args.json {
-            println!("wrote {} charts to {}", written.len(), dir.display());
+            outln!("wrote {} charts to {}", written.len(), dir.display());
         }
     }
     if let Some(out) = &args.out {
@@ -182,12 +182,12 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
             adjustments: &adjustments,
             report: &report,
         };
-        println!("{}", serde_json::to_string_pretty(&output)?);
+        outln!("{}", serde_json::to_string_pretty(&output)?);
     } else {
         if args.extruded {
-            println!("Extruded profile: law built as for a surface with a profile axis, arc across the axis.");
+            outln!("Extruded profile: law built as for a surface with a profile axis, arc across the axis.");
         }
-        print!("{}", table(&material.name, &report));
+        out!("{}", table(&material.name, &report));
     }
     Ok(ExitCode::SUCCESS)
 }

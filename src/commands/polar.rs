@@ -112,10 +112,10 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     }
     if args.json {
         summary.files = Some(files.iter().map(|f| f.display().to_string()).collect());
-        println!("{}", serde_json::to_string_pretty(&summary)?);
+        outln!("{}", serde_json::to_string_pretty(&summary)?);
     } else {
-        print!("{}", table(&file, &input, &analysis));
-        println!("wrote {} files to {}", files.len(), out_dir.display());
+        out!("{}", table(&file, &input, &analysis));
+        outln!("wrote {} files to {}", files.len(), out_dir.display());
     }
     Ok(ExitCode::SUCCESS)
 }
@@ -534,9 +534,9 @@ fn run_chamber(path: &Path, json: bool) -> anyhow::Result<ExitCode> {
             "bands": bands,
             "warnings": warnings,
         });
-        println!("{}", serde_json::to_string_pretty(&out)?);
+        outln!("{}", serde_json::to_string_pretty(&out)?);
     } else {
-        print!("{}", chamber_table(path, &file.name, &bands));
+        out!("{}", chamber_table(path, &file.name, &bands));
     }
     Ok(ExitCode::SUCCESS)
 }

@@ -42,8 +42,8 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         .collect();
     let incidences: Vec<String> = gon.incidence_deg.iter().map(|a| format!("{a}°")).collect();
     let first = prediction.polar.responses.first();
-    println!("{}: {}", args.file.display(), spec.name);
-    println!(
+    outln!("{}: {}", args.file.display(), spec.name);
+    outln!(
         "  sample {:.3} m{}, source {} m, receivers {} m ({} per response)",
         prediction.polar.geometry.sample_width_m,
         prediction
@@ -56,9 +56,9 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         gon.receiver_distance_m,
         first.map_or(0, |r| r.receiver_deg.len())
     );
-    println!("  bands (Hz): {}", bands.join(", "));
-    println!("  incidences: {}", incidences.join(", "));
-    println!(
+    outln!("  bands (Hz): {}", bands.join(", "));
+    outln!("  incidences: {}", incidences.join(", "));
+    outln!(
         "  surface elements per band: {}",
         prediction
             .elements_per_band
@@ -67,7 +67,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
             .collect::<Vec<_>>()
             .join(", ")
     );
-    println!(
+    outln!(
         "  wrote {} ({} responses)",
         args.out.display(),
         prediction.polar.responses.len()
@@ -85,6 +85,6 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
 /// same chart code as `polaray polar`.
 fn write_plots(polar: &PolarFile, dir: &Path) -> anyhow::Result<()> {
     let files = super::polar::write_file_charts(polar, dir)?;
-    println!("wrote {} charts to {}", files.len(), dir.display());
+    outln!("wrote {} charts to {}", files.len(), dir.display());
     Ok(())
 }

@@ -157,29 +157,33 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
         report::write_run_with_parameters(&out, &room, &options, &result, &parameters, warnings)?;
     print_summary(&room, &options, &result);
     print_parameters(&result, &parameters);
-    println!("  wrote {} files to {}", written.len(), out.display());
-    println!("  {}", report::ADVISORY);
+    outln!("  wrote {} files to {}", written.len(), out.display());
+    outln!("  {}", report::ADVISORY);
     Ok(ExitCode::SUCCESS)
 }
 
 /// The stdout summary: what was traced and how it went.
 fn print_summary(room: &room::Room, options: &TraceOptions, result: &TraceResult) {
     let s = &result.stats;
-    println!(
+    outln!(
         "{} · law {} · {} rays per source in {} batches · seed {}",
-        room.name, options.law, options.rays, s.batches, options.seed
+        room.name,
+        options.law,
+        options.rays,
+        s.batches,
+        options.seed
     );
     let volume = estimates::volume_m3(room);
-    print!(
+    out!(
         "  room: V {volume:.1} m³, S {:.1} m², 4V/S {:.2} m",
         estimates::area_m2(room),
         estimates::mean_free_path_m(room)
     );
     match s.traced_mean_free_path_m {
-        Some(m) => println!(" (traced {m:.2} m)"),
-        None => println!(),
+        Some(m) => outln!(" (traced {m:.2} m)"),
+        None => outln!(),
     }
-    println!(
+    outln!(
         "  traced: {} segments, {} lost rays, {:.2} s wall time, {:.2} s echograms in {:.1} ms bins",
         s.segments,
         s.lost_rays,
@@ -228,11 +232,11 @@ fn cell(parameter: Parameter, value: Option<f64>, se: Option<f64>, batched: bool
 fn print_parameters(result: &TraceResult, parameters: &[report::PairParameters]) {
     let means = has_single_numbers(result);
     if means {
-        println!(
+        outln!(
             "  parameters ± standard error, means over 500–1000 Hz (JLF 125–1000 Hz); per band in parameters.csv"
         );
     } else {
-        println!(
+        outln!(
             "  parameters ± standard error per band (500 and 1000 Hz not both traced, so no means)"
         );
     }
@@ -294,7 +298,7 @@ fn print_parameters(result: &TraceResult, parameters: &[report::PairParameters])
             out.push_str(&" ".repeat(widths[c] - text.chars().count()));
             out.push_str(text);
         }
-        println!("{out}");
+        outln!("{out}");
     };
     line("receiver", &headings);
     for (name, cells) in &rows {
@@ -304,12 +308,12 @@ fn print_parameters(result: &TraceResult, parameters: &[report::PairParameters])
         .iter()
         .any(|(_, cells)| cells.iter().any(|c| c.ends_with("±?")))
     {
-        println!("  ±?: the value is undefined without some batch, so it has no standard error (too noisy to trust)");
+        outln!("  ±?: the value is undefined without some batch, so it has no standard error (too noisy to trust)");
     }
     for p in parameters {
         for n in &p.notes {
             let name = report::column_prefix(result, p.source, p.receiver);
-            println!("  note: {name}: {n}");
+            outln!("  note: {name}: {n}");
         }
     }
 }
