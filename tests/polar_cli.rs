@@ -171,7 +171,13 @@ fn table_names_the_incidence_and_columns() {
         .success()
         .stdout(predicate::str::contains("incidence"))
         .stdout(predicate::str::contains("d/d_max"))
-        .stdout(predicate::str::contains("Random incidence"));
+        // One response at 0° is no random-incidence value, and it says so.
+        .stdout(predicate::str::contains(
+            "Random incidence: not formed, the data hold one angle of incidence only",
+        ))
+        .stderr(predicate::str::contains(
+            "no random-incidence value can be formed",
+        ));
 }
 
 #[test]
@@ -432,7 +438,9 @@ fn hemispherical_data_use_area_weights_and_plot_the_plane_of_incidence() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("hemi.toml");
     std::fs::write(&path, text).unwrap();
+    // The default output folder is `<stem>-polar/` in the working folder.
     let out = polaray()
+        .current_dir(dir.path())
         .args(["polar", path.to_str().unwrap(), "--json"])
         .assert()
         .success()

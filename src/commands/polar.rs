@@ -32,7 +32,7 @@ pub struct Args {
     /// Print the results as JSON on stdout instead of a table.
     #[arg(long)]
     pub json: bool,
-    /// Folder for charts and the JSON summary (default: `<file stem>-polar/` beside the file).
+    /// Folder for charts and the JSON summary (default: `<file stem>-polar/` in the current folder, as `run` and `compare` do).
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
     /// Angle of incidence of CSV data, degrees from the normal.
@@ -181,7 +181,7 @@ fn default_out_dir(file: &Path) -> PathBuf {
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
         .unwrap_or_else(|| "polar".into());
-    file.with_file_name(format!("{stem}-polar"))
+    PathBuf::from(format!("{stem}-polar"))
 }
 
 fn positive(name: &str, v: Option<f64>) -> anyhow::Result<Option<f64>> {
@@ -477,6 +477,13 @@ fn table(file: &Path, input: &Input, a: &Analysis) -> String {
             opt(c.d_max),
             opt(c.d_ratio),
         );
+    }
+    if a.random_incidence.is_empty() {
+        let _ = writeln!(
+            s,
+            "\nRandom incidence: not formed, the data hold one angle of incidence only"
+        );
+        return s;
     }
     let _ = writeln!(
         s,

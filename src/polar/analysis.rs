@@ -250,8 +250,28 @@ pub fn analyze(
             }
         }
     }
+    // A random-incidence average needs responses at more than one incidence:
+    // with one, the "average" would be that one response renamed.
+    let single_incidence = band_list.iter().all(|&band| {
+        let mut angles: Vec<(f64, Option<f64>)> = bands
+            .iter()
+            .filter(|c| c.band_hz == band)
+            .map(|c| (c.incidence_deg, c.incidence_azimuth_deg))
+            .collect();
+        angles.dedup();
+        angles.len() <= 1
+    });
+    if single_incidence {
+        if let Some(c) = bands.first() {
+            warnings.push(format!(
+                "the data hold one angle of incidence only ({}°), so no random-incidence value can be formed; give responses at several incidences (e.g. 0°, 30°, 60°) for one",
+                c.incidence_deg
+            ));
+        }
+    }
     let random_incidence = band_list
         .iter()
+        .filter(|_| !single_incidence)
         .map(|&band| {
             let items: Vec<&ResponseCoefficients> =
                 bands.iter().filter(|c| c.band_hz == band).collect();
