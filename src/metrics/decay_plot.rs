@@ -128,12 +128,16 @@ fn draw_panel<DB: DrawingBackend>(
         .y_desc("level (dB)")
         .draw()?;
     if let Some((a, b)) = panel.fits.t30.span_s {
-        chart.draw_series(std::iter::once(Rectangle::new(
-            [(a, LEVEL_MIN_DB), (b, 5.0)],
-            plot::SHADE.filled(),
-        )))?;
+        chart
+            .draw_series(std::iter::once(Rectangle::new(
+                [(a, LEVEL_MIN_DB), (b, 5.0)],
+                plot::SHADE.filled(),
+            )))?
+            .label("T30 fit range (−5 to −35 dB)")
+            .legend(|(x, y)| Rectangle::new([(x, y - 5), (x + 16, y + 5)], plot::SHADE.filled()));
     }
-    if let Some(f) = panel.floor_db.filter(|f| *f > LEVEL_MIN_DB) {
+    // The floor line only where it is on the chart (a little above its foot).
+    if let Some(f) = panel.floor_db.filter(|f| *f > LEVEL_MIN_DB + 1.0) {
         chart
             .draw_series(LineSeries::new(
                 [(0.0, f), (t_max, f)],

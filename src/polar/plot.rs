@@ -208,7 +208,8 @@ fn render_polar<DB: DrawingBackend>(
         root.draw(&PathElement::new(pts, GRID.stroke_width(1)))
             .map_err(e)?;
         root.draw(&Text::new(
-            format!("{ring_db:.0} dB"),
+            // `+ 0.0` turns a rounded −0 into 0, so no ring reads "-0 dB".
+            format!("{:.0} dB", ring_db.round() + 0.0),
             (at(90.0, r).0, (cy + 8.0) as i32),
             text_style(13, HPos::Center, VPos::Top),
         ))

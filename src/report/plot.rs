@@ -1,4 +1,5 @@
-//! Echogram charts: level per bin in dB against time in ms, one line per band.
+//! Echogram charts: level per bin in dB against time in ms, one panel per
+//! band with its 10 ms mean drawn over the raw bins.
 
 use std::path::Path;
 
@@ -54,6 +55,12 @@ fn level_db(fluence: f64) -> f64 {
     10.0 * (4.0 * std::f64::consts::PI * 100.0 * fluence).log10()
 }
 
+/// Length of the blocks whose mean energy is drawn over the raw bins, s.
+const MEAN_BLOCK_S: f64 = 0.010;
+
+/// One panel per band (three to a row, all on the same scales): the level of
+/// every bin, light, and of the mean energy per bin over 10 ms blocks, dark,
+/// so the decay reads at a glance while single arrivals stay visible.
 fn draw(result: &TraceResult, source: usize, receiver: usize, tmp: &Path) -> Result<(), String> {
     ensure_fonts();
     let pair = result.pair(source, receiver);
@@ -67,61 +74,81 @@ fn draw(result: &TraceResult, source: usize, receiver: usize, tmp: &Path) -> Res
     };
     let floor_db = top_db - RANGE_DB;
     let t_max_ms = e.bins() as f64 * result.bin_s * 1e3;
+    let first = e.first_nonzero_bin().unwrap_or(0);
+    let block = ((MEAN_BLOCK_S / result.bin_s).round() as usize).max(1);
+    let db = |v: f64| {
+        if v > 0.0 {
+            level_db(v).max(floor_db)
+        } else {
+            floor_db
+        }
+    };
 
-    let root = BitMapBackend::new(tmp, CHART_SIZE).into_drawing_area();
+    let columns = bands.clamp(1, 3);
+    let rows = bands.div_ceil(columns).max(1);
+    let size = (CHART_SIZE.0, 70 + 290 * rows as u32);
+    let root = BitMapBackend::new(tmp, size).into_drawing_area();
     root.fill(&PAPER).map_err(|x| x.to_string())?;
     let title = format!(
-        "{} at {}: energy per {:.1} ms bin",
+        "{} at {}: level per {:.1} ms bin (light) and mean over {:.0} ms (dark), dB re the free-field direct sound at 10 m",
         result.sources[source].name,
         result.receivers[receiver].name,
-        result.bin_s * 1e3
+        result.bin_s * 1e3,
+        block as f64 * result.bin_s * 1e3
     );
-    let mut chart = ChartBuilder::on(&root)
-        .caption(title, (FONT, 24).into_font().color(&INK))
-        .margin(20)
-        .x_label_area_size(50)
-        .y_label_area_size(70)
-        .build_cartesian_2d(0.0..t_max_ms, floor_db..top_db)
+    let root = root
+        .titled(&title, (FONT, 18).into_font().color(&INK))
         .map_err(|x| x.to_string())?;
-    chart
-        .configure_mesh()
-        .x_desc("Time after emission (ms)")
-        .y_desc("Level re free field at 10 m (dB)")
-        .axis_style(INK)
-        .bold_line_style(GRID)
-        .light_line_style(GRID.mix(0.4))
-        .label_style((FONT, 16).into_font().color(&INK))
-        .axis_desc_style((FONT, 18).into_font().color(&INK))
-        .draw()
-        .map_err(|x| x.to_string())?;
-    for b in 0..bands {
+    let panels = root.split_evenly((rows, columns));
+    for (b, panel) in panels.iter().enumerate().take(bands) {
         let colour = series_colour(b);
-        // From the first arrival on; empty bins later on sit at the floor.
-        let first = e.first_nonzero_bin().unwrap_or(0);
-        let points = e.energy.iter().enumerate().skip(first).map(|(k, v)| {
-            let db = if v[b] > 0.0 {
-                level_db(v[b]).max(floor_db)
-            } else {
-                floor_db
-            };
-            ((k as f64 + 0.5) * result.bin_s * 1e3, db)
-        });
+        let mut chart = ChartBuilder::on(panel)
+            .caption(
+                format!("{} Hz", result.bands.centres_hz()[b]),
+                (FONT, 16).into_font().color(&INK),
+            )
+            .margin(8)
+            .x_label_area_size(36)
+            .y_label_area_size(48)
+            .build_cartesian_2d(0.0..t_max_ms, floor_db..top_db)
+            .map_err(|x| x.to_string())?;
         chart
-            .draw_series(LineSeries::new(points, colour.stroke_width(1)))
-            .map_err(|x| x.to_string())?
-            .label(format!("{} Hz", result.bands.centres_hz()[b]))
-            .legend(move |(x, y)| {
-                PathElement::new(vec![(x, y), (x + 24, y)], colour.stroke_width(3))
+            .configure_mesh()
+            .x_desc("time after emission (ms)")
+            .y_desc("level (dB)")
+            .x_labels(5)
+            .y_labels(5)
+            .x_label_formatter(&|v| format!("{v:.0}"))
+            .y_label_formatter(&|v| format!("{v:.0}"))
+            .axis_style(INK)
+            .bold_line_style(GRID)
+            .light_line_style(GRID.mix(0.0))
+            .label_style((FONT, 13).into_font().color(&INK))
+            .axis_desc_style((FONT, 13).into_font().color(&INK))
+            .draw()
+            .map_err(|x| x.to_string())?;
+        // From the first arrival on; empty bins later on sit at the floor.
+        let raw = e
+            .energy
+            .iter()
+            .enumerate()
+            .skip(first)
+            .map(|(k, v)| ((k as f64 + 0.5) * result.bin_s * 1e3, db(v[b])));
+        chart
+            .draw_series(LineSeries::new(raw, colour.mix(0.35).stroke_width(1)))
+            .map_err(|x| x.to_string())?;
+        let means = e.energy[first..]
+            .chunks(block)
+            .enumerate()
+            .map(|(j, chunk)| {
+                let mean = chunk.iter().map(|v| v[b]).sum::<f64>() / chunk.len() as f64;
+                let mid = first as f64 + (j * block) as f64 + 0.5 * chunk.len() as f64;
+                (mid * result.bin_s * 1e3, db(mean))
             });
+        chart
+            .draw_series(LineSeries::new(means, colour.stroke_width(2)))
+            .map_err(|x| x.to_string())?;
     }
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperRight)
-        .background_style(PAPER.mix(0.9))
-        .border_style(INK)
-        .label_font((FONT, 16).into_font().color(&INK))
-        .draw()
-        .map_err(|x| x.to_string())?;
     root.present().map_err(|x| x.to_string())?;
     Ok(())
 }
