@@ -9,6 +9,7 @@
 pub mod accel;
 pub mod air;
 pub mod bands;
+pub mod build_info;
 pub mod compare;
 pub mod geometry;
 pub mod gonio;

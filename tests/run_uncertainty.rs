@@ -135,6 +135,15 @@ fn run_writes_standard_errors_and_warns_when_they_exceed_half_a_jnd() {
     let json: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("result.json")).unwrap()).unwrap();
     assert_eq!(json["settings"]["batches"], 20);
+    // Provenance: the build that computed the numbers (build.rs).
+    let build = &json["build"];
+    assert!(
+        build["compiler"].as_str().unwrap().starts_with("rustc "),
+        "{build}"
+    );
+    assert_eq!(build["version"], env!("CARGO_PKG_VERSION"));
+    assert!(!build["target"].as_str().unwrap().is_empty());
+    assert!(!build["commit"].as_str().unwrap().is_empty());
     assert_eq!(json["stats"]["batches"], 20);
     let r = &json["receivers"][0];
     let edt_se = r["averages_standard_errors"]["EDT_s"].as_f64().unwrap();

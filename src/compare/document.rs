@@ -68,6 +68,8 @@ pub struct ComparisonDocument {
 pub struct Provenance {
     /// polaray version that wrote the document.
     pub polaray_version: String,
+    /// The build that computed the numbers (commit, target, compiler, profile).
+    pub build: crate::build_info::BuildInfo,
     /// Every input file with its SHA-256 (the comparison file first).
     pub inputs: Vec<FileRecord>,
     /// Settings given on the command line over the file's.
@@ -457,6 +459,7 @@ pub fn build_document(
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
         provenance: Provenance {
             polaray_version: env!("CARGO_PKG_VERSION").into(),
+            build: crate::build_info::BUILD,
             inputs,
             overrides: plan.overrides,
             reproduce_command: "polaray compare --reproduce comparison.json".into(),

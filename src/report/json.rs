@@ -264,6 +264,8 @@ pub struct PairReport {
 pub struct RunReport {
     /// Program and version.
     pub program: String,
+    /// The build that computed the numbers (commit, target, compiler, profile).
+    pub build: crate::build_info::BuildInfo,
     /// The advisory note.
     pub advisory: &'static str,
     /// Room estimates.
@@ -317,6 +319,7 @@ impl RunReport {
         let air = &room.settings.air;
         RunReport {
             program: format!("polaray {}", env!("CARGO_PKG_VERSION")),
+            build: crate::build_info::BUILD,
             advisory: ADVISORY,
             room: RoomReport {
                 name: room.name.clone(),
