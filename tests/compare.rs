@@ -526,3 +526,33 @@ fn the_report_renders_in_a_headless_browser() {
         pixels.len()
     );
 }
+
+#[test]
+fn the_record_holds_no_absolute_path_and_reproduces_from_anywhere() {
+    // Provenance records paths relative to the working folder and to the
+    // results folder, never the author's absolute paths; a reviewer working
+    // in the results folder itself still finds the inputs.
+    let out = shared_run();
+    fn absolute_strings(v: &Value, found: &mut Vec<String>) {
+        match v {
+            Value::String(s) if s.starts_with(env!("CARGO_MANIFEST_DIR")) => found.push(s.clone()),
+            Value::Array(a) => a.iter().for_each(|x| absolute_strings(x, found)),
+            Value::Object(o) => o.values().for_each(|x| absolute_strings(x, found)),
+            _ => {}
+        }
+    }
+    let mut found = Vec::new();
+    absolute_strings(&document(out), &mut found);
+    assert!(found.is_empty(), "absolute paths recorded: {found:?}");
+    let o = polaray()
+        .current_dir(out)
+        .args(["compare", "--quiet", "--reproduce", "comparison.json"])
+        .output()
+        .unwrap();
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        o.status.success() && stdout.contains("reproduced: all"),
+        "{stdout}\n{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+}

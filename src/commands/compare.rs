@@ -103,7 +103,7 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     });
     print_plan(&plan);
     let progress = bar(&plan, args.quiet);
-    let (doc, outcomes) = compare::run_comparison(&plan, &progress)
+    let (doc, outcomes) = compare::run_comparison(&plan, Some(&out), &progress)
         .with_context(|| format!("{}: comparison failed", file.display()))?;
     progress.0.finish_and_clear();
     for w in doc.warnings.iter().skip(plan.warnings.len()) {
@@ -182,7 +182,7 @@ fn reproduce_run(
 ) -> anyhow::Result<ExitCode> {
     let record = reproduce::read_record(json, file)?;
     let plan = load_comparison(&record.comparison_file, record.overrides)?;
-    let now = provenance::record_inputs(&plan.inputs)?;
+    let now = provenance::record_inputs(&plan.inputs, None)?;
     let changed = reproduce::input_differences(&record.inputs, &now);
     if !changed.is_empty() {
         return Err(CompareError::Reproduce {
@@ -206,7 +206,7 @@ fn reproduce_run(
         record.comparison_file.display()
     );
     let progress = bar(&plan, quiet);
-    let (doc, outcomes) = compare::run_comparison(&plan, &progress)?;
+    let (doc, outcomes) = compare::run_comparison(&plan, out, &progress)?;
     progress.0.finish_and_clear();
     if let Some(out) = out {
         let n = write_all(out, &doc, &outcomes)?;

@@ -60,15 +60,17 @@ impl Progress for Silent {
     fn rays_done(&self, _rays: usize) {}
 }
 
-/// Traces every run of `plan` and builds the document. Returns the
-/// document and the traced runs (their pooled echograms and decay curves feed
-/// the charts).
+/// Traces every run of `plan` and builds the document; `record_dir` is the
+/// folder `comparison.json` will be written to (inputs are recorded relative
+/// to it). Returns the document and the traced runs (their pooled echograms
+/// and decay curves feed the charts).
 pub fn run_comparison(
     plan: &ComparisonPlan,
+    record_dir: Option<&Path>,
     progress: &dyn Progress,
 ) -> Result<(ComparisonDocument, Vec<RunOutcome>), CompareError> {
     let started = Instant::now();
-    let inputs = provenance::record_inputs(&plan.inputs)?;
+    let inputs = provenance::record_inputs(&plan.inputs, record_dir)?;
     let runs = plan.runs();
     let mut outcomes = Vec::with_capacity(runs.len());
     for (i, run) in runs.iter().enumerate() {

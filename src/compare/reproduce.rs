@@ -30,7 +30,8 @@ pub struct Record {
 pub const REPRODUCED_SECTIONS: [&str; 4] = ["settings", "runs", "spreads", "envelope"];
 
 /// Reads `json` (a `comparison.json`); the comparison file is `file` when
-/// given, else the recorded path, else the recorded absolute path.
+/// given, else the recorded path, else the path recorded relative to the
+/// folder of `json`.
 pub fn read_record(json: &Path, file: Option<&Path>) -> Result<Record, CompareError> {
     let fail = |message: String| CompareError::Reproduce {
         file: json.to_path_buf(),
@@ -65,15 +66,20 @@ pub fn read_record(json: &Path, file: Option<&Path>) -> Result<Record, CompareEr
                 .iter()
                 .find(|f| f.role == "comparison")
                 .ok_or_else(|| fail("`provenance.inputs` names no comparison file".into()))?;
-            [&recorded.path, &recorded.absolute_path]
-                .iter()
-                .map(PathBuf::from)
+            let beside_record = recorded
+                .from_record
+                .as_ref()
+                .map(|rel| json.parent().unwrap_or_else(|| Path::new("")).join(rel));
+            std::iter::once(PathBuf::from(&recorded.path))
+                .chain(beside_record.clone())
                 .find(|p| p.is_file())
                 .ok_or_else(|| {
+                    let also = beside_record
+                        .map(|p| format!(" nor at {}", p.display()))
+                        .unwrap_or_default();
                     fail(format!(
-                        "the comparison file is neither at {} nor at {}; give its path: polaray compare FILE --reproduce {}",
+                        "the comparison file is neither at {}{also}; give its path: polaray compare FILE --reproduce {}",
                         recorded.path,
-                        recorded.absolute_path,
                         json.display()
                     ))
                 })?
@@ -152,17 +158,29 @@ pub fn number_differences(recorded: &Value, now: &Value) -> (usize, Vec<String>)
     (count, diffs)
 }
 
+/// Keys whose values are not compared ([`walk`]).
+const IGNORED_KEY: &str = "warnings";
+
 fn walk(a: &Value, b: &Value, at: &str, count: &mut usize, diffs: &mut Vec<String>) {
     match (a, b) {
         (Value::Object(x), Value::Object(y)) => {
             for (k, v) in x {
+                // Warnings are messages, not results, and name files as the
+                // working folder spells them: a re-run from elsewhere words
+                // them differently with the same numbers.
+                if k == IGNORED_KEY {
+                    continue;
+                }
                 let path = format!("{at}/{k}");
                 match y.get(k) {
                     Some(w) => walk(v, w, &path, count, diffs),
                     None => diffs.push(format!("{path}: missing in the re-run")),
                 }
             }
-            for k in y.keys().filter(|k| !x.contains_key(*k)) {
+            for k in y
+                .keys()
+                .filter(|k| !x.contains_key(*k) && k.as_str() != IGNORED_KEY)
+            {
                 diffs.push(format!("{at}/{k}: new in the re-run"));
             }
         }
