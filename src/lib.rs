@@ -15,6 +15,7 @@ pub mod geometry;
 pub mod gonio;
 mod lanes;
 pub mod law;
+pub mod messages;
 pub mod metrics;
 pub mod output;
 pub mod plot;

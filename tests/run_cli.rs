@@ -162,6 +162,10 @@ fn missing_room_file_is_a_clear_error() {
     assert!(!out.status.success());
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(stderr.contains("no-such-room.toml"), "{stderr}");
+    // Plain words, said once: no system codes, no repeated cause.
+    assert!(stderr.contains("no such file"), "{stderr}");
+    assert!(!stderr.contains("os error"), "{stderr}");
+    assert_eq!(stderr.matches("no such file").count(), 1, "{stderr}");
     assert!(
         !dir.path().join("out").exists(),
         "output folder created for a failed run"

@@ -320,10 +320,14 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
         file: path.to_path_buf(),
         problems,
     };
-    let text = std::fs::read_to_string(path)
-        .map_err(|e| fail(vec![format!("cannot read the comparison file: {e}")]))?;
+    let text = std::fs::read_to_string(path).map_err(|e| {
+        fail(vec![format!(
+            "cannot read the comparison file: {}",
+            crate::messages::io_problem(&e)
+        )])
+    })?;
     let spec: ComparisonFile =
-        toml::from_str(&text).map_err(|e| fail(vec![e.to_string().trim_end().to_string()]))?;
+        toml::from_str(&text).map_err(|e| fail(vec![crate::messages::toml_problem(&e)]))?;
     let dir = path.parent().unwrap_or(Path::new("")).to_path_buf();
     let mut problems = Problems(Vec::new());
     let mut warnings = Vec::new();

@@ -37,7 +37,12 @@ pub fn read_record(json: &Path, file: Option<&Path>) -> Result<Record, CompareEr
         file: json.to_path_buf(),
         message,
     };
-    let text = std::fs::read_to_string(json).map_err(|e| fail(format!("cannot read it: {e}")))?;
+    let text = std::fs::read_to_string(json).map_err(|e| {
+        fail(format!(
+            "cannot read it: {}",
+            crate::messages::io_problem(&e)
+        ))
+    })?;
     let document: Value =
         serde_json::from_str(&text).map_err(|e| fail(format!("not valid JSON: {e}")))?;
     if document.get("format").and_then(Value::as_str) != Some(FORMAT) {

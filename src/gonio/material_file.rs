@@ -58,7 +58,7 @@ struct Raw {
 pub fn load_material_file(path: &Path) -> Result<MaterialFile, MaterialFileError> {
     let text = std::fs::read_to_string(path).map_err(|e| MaterialFileError {
         file: path.to_path_buf(),
-        problem: format!("cannot read the file: {e}"),
+        problem: format!("cannot read the file: {}", crate::messages::io_problem(&e)),
     })?;
     parse_material_file(&text, path)
 }
@@ -70,7 +70,7 @@ pub fn parse_material_file(text: &str, path: &Path) -> Result<MaterialFile, Mate
         file: path.to_path_buf(),
         problem,
     };
-    let raw: Raw = toml::from_str(text).map_err(|e| fail(e.to_string().trim_end().to_string()))?;
+    let raw: Raw = toml::from_str(text).map_err(|e| fail(crate::messages::toml_problem(&e)))?;
     let bands = BandSet::new(&raw.bands_hz).map_err(|e| fail(format!("bands_hz: {e}")))?;
     let coefficients = |field: &str, v: &[f64]| -> Result<Bands, MaterialFileError> {
         let values = bands.values(v).map_err(|e| fail(format!("{field}: {e}")))?;

@@ -8,6 +8,26 @@ use std::path::{Path, PathBuf};
 /// and the noise search needs at least 10 averaging intervals.
 pub const MIN_DURATION_AFTER_ONSET_S: f64 = 0.2;
 
+/// What is wrong, from what hound reported: a file that cannot be read at
+/// all, or one that is not a WAV file polaray reads.
+fn wav_problem(e: &hound::Error) -> String {
+    match e {
+        hound::Error::IoError(io)
+            if matches!(
+                io.kind(),
+                std::io::ErrorKind::NotFound
+                    | std::io::ErrorKind::PermissionDenied
+                    | std::io::ErrorKind::IsADirectory
+            ) =>
+        {
+            format!("cannot read the file: {}", crate::messages::io_problem(io))
+        }
+        other => format!(
+            "cannot read as a WAV file ({other}); give a PCM or 32-bit float WAV impulse response"
+        ),
+    }
+}
+
 /// Consecutive samples at full scale that count as clipping.
 pub const CLIP_RUN: usize = 3;
 
@@ -15,12 +35,12 @@ pub const CLIP_RUN: usize = 3;
 #[derive(Debug, thiserror::Error)]
 pub enum WavError {
     /// Not readable as WAV.
-    #[error("{path}: cannot read as a WAV file ({source}); give a PCM or 32-bit float WAV impulse response")]
+    #[error("{path}: {}", wav_problem(.cause))]
     Unreadable {
         /// File.
         path: PathBuf,
-        /// What hound reported.
-        source: hound::Error,
+        /// What hound reported (not a `source`: the message already says it).
+        cause: hound::Error,
     },
     /// A sample format polaray does not read.
     #[error("{path}: {bits}-bit {format} samples are not supported; use 16, 24 or 32-bit integer or 32-bit float")]
@@ -90,11 +110,11 @@ pub struct ImpulseResponse {
 /// Reads and checks a WAV impulse response.
 pub fn read_wav(path: &Path) -> Result<ImpulseResponse, WavError> {
     let p = || path.to_path_buf();
-    let mut reader = hound::WavReader::open(path)
-        .map_err(|source| WavError::Unreadable { path: p(), source })?;
+    let mut reader =
+        hound::WavReader::open(path).map_err(|cause| WavError::Unreadable { path: p(), cause })?;
     let spec = reader.spec();
     let channels = spec.channels.max(1) as usize;
-    let unreadable = |source| WavError::Unreadable { path: p(), source };
+    let unreadable = |cause| WavError::Unreadable { path: p(), cause };
     let (samples, full_scale): (Vec<f64>, f64) = match (spec.sample_format, spec.bits_per_sample) {
         (hound::SampleFormat::Int, bits @ (16 | 24 | 32)) => {
             let scale = f64::from(1u32 << (bits - 1));

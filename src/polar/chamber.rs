@@ -163,7 +163,7 @@ pub fn load_chamber_file(path: &Path) -> Result<ChamberFile, PolarFileError> {
         fail(vec![Problem {
             line: None,
             item: String::new(),
-            message: format!("cannot read the file: {e}"),
+            message: format!("cannot read the file: {}", crate::messages::io_problem(&e)),
         }])
     })?;
     let parsed: ChamberFile =

@@ -45,7 +45,7 @@ pub fn load_polar_csv(path: &Path) -> Result<PolarCsv, PolarFileError> {
         problems: vec![Problem {
             line: None,
             item: String::new(),
-            message: format!("cannot read the file: {e}"),
+            message: format!("cannot read the file: {}", crate::messages::io_problem(&e)),
         }],
     })?;
     parse_polar_csv(&text, path)

@@ -102,7 +102,7 @@ pub fn load_polar_file(path: &Path) -> Result<PolarFile, PolarFileError> {
         problems: vec![Problem {
             line: None,
             item: String::new(),
-            message: format!("cannot read the file: {e}"),
+            message: format!("cannot read the file: {}", crate::messages::io_problem(&e)),
         }],
     })?;
     parse_polar_toml(&text, path)

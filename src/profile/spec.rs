@@ -360,12 +360,12 @@ pub const NOMINAL_THIRD_HZ: [f64; 28] = [
 #[derive(Debug, thiserror::Error)]
 pub enum SpecError {
     /// The file could not be read.
-    #[error("{}: cannot read the profile file: {source}", .file.display())]
+    #[error("{}: cannot read the profile file: {}", .file.display(), crate::messages::io_problem(.cause))]
     Read {
         /// The file.
         file: PathBuf,
-        /// Why.
-        source: std::io::Error,
+        /// Why (not a `source`: the message already says it).
+        cause: std::io::Error,
     },
     /// TOML syntax or an unknown / missing / mistyped field.
     #[error("{}: {message}", .file.display())]
@@ -387,9 +387,9 @@ pub enum SpecError {
 
 /// Reads and checks a profile specification file.
 pub fn load_spec(path: &Path) -> Result<ProfileSpec, SpecError> {
-    let text = std::fs::read_to_string(path).map_err(|source| SpecError::Read {
+    let text = std::fs::read_to_string(path).map_err(|cause| SpecError::Read {
         file: path.to_path_buf(),
-        source,
+        cause,
     })?;
     parse_spec(&text, path)
 }

@@ -51,10 +51,14 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
         file: path.to_path_buf(),
         problems,
     };
-    let text = std::fs::read_to_string(path)
-        .map_err(|e| fail(vec![format!("cannot read the room file: {e}")]))?;
+    let text = std::fs::read_to_string(path).map_err(|e| {
+        fail(vec![format!(
+            "cannot read the room file: {}",
+            crate::messages::io_problem(&e)
+        )])
+    })?;
     let file: RoomFile =
-        toml::from_str(&text).map_err(|e| fail(vec![e.to_string().trim_end().to_string()]))?;
+        toml::from_str(&text).map_err(|e| fail(vec![crate::messages::toml_problem(&e)]))?;
     let dir = path.parent().unwrap_or(Path::new("")).to_path_buf();
 
     let mut b = Builder::default();

@@ -14,12 +14,12 @@ pub enum MeasuredLawError {
         material: String,
     },
     /// The file cannot be read.
-    #[error("{}: cannot read the polar file: {source}", .file.display())]
+    #[error("{}: cannot read the polar file: {}", .file.display(), crate::messages::io_problem(.cause))]
     Read {
         /// Polar file.
         file: PathBuf,
-        /// Underlying error.
-        source: std::io::Error,
+        /// Why (not a `source`: the message already says it).
+        cause: std::io::Error,
     },
     /// The file is not a valid polar data file.
     #[error("{}: not a valid polar file: {message}", .file.display())]

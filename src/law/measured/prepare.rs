@@ -67,9 +67,9 @@ struct Prepared {
 
 /// Reads a polar file (TOML) without the full validation of the polar module.
 pub fn load_polar_file(path: &Path) -> Result<PolarFile, MeasuredLawError> {
-    let text = std::fs::read_to_string(path).map_err(|source| MeasuredLawError::Read {
+    let text = std::fs::read_to_string(path).map_err(|cause| MeasuredLawError::Read {
         file: path.to_path_buf(),
-        source,
+        cause,
     })?;
     toml::from_str(&text).map_err(|e| MeasuredLawError::Parse {
         file: path.to_path_buf(),
