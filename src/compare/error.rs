@@ -20,6 +20,15 @@ pub enum CompareError {
     /// The room file is unusable.
     #[error(transparent)]
     Room(#[from] RoomError),
+    /// The room file the comparison file names is unusable.
+    #[error("{}: the room file it names is unusable: {cause}", .file.display())]
+    RoomOfComparison {
+        /// The comparison file.
+        file: PathBuf,
+        /// Why (the room file's own error, which names it; not a `source`,
+        /// since the message already says it).
+        cause: RoomError,
+    },
     /// A run could not be traced.
     #[error("{}: run `{run}`: {source}", .file.display())]
     Trace {

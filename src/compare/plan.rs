@@ -334,7 +334,10 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
 
     // The room and the files it reads.
     let room_file = dir.join(&spec.room);
-    let loaded = load_room(&room_file)?;
+    let loaded = load_room(&room_file).map_err(|cause| CompareError::RoomOfComparison {
+        file: path.to_path_buf(),
+        cause,
+    })?;
     warnings.extend(
         loaded
             .warnings
