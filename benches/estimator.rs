@@ -186,7 +186,8 @@ fn summary() {
 }
 
 /// The next-event estimator with its default settings, or those of the
-/// environment (`ESTIMATOR_LATE_RADIUS_M`, `ESTIMATOR_IMAGE_ORDER`) for studies.
+/// environment (`ESTIMATOR_LATE_RADIUS_M`, `ESTIMATOR_IMAGE_ORDER`,
+/// `ESTIMATOR_RAIN=0` for no next-event scoring) for studies.
 fn next_event() -> Estimator {
     let mut s = trace::NextEventSettings::default();
     if let Ok(v) = std::env::var("ESTIMATOR_LATE_RADIUS_M") {
@@ -194,6 +195,9 @@ fn next_event() -> Estimator {
     }
     if let Ok(v) = std::env::var("ESTIMATOR_IMAGE_ORDER") {
         s.image_order = v.parse().expect("image order");
+    }
+    if std::env::var("ESTIMATOR_RAIN").is_ok_and(|v| v == "0") {
+        s.rain = false;
     }
     Estimator::NextEvent(s)
 }

@@ -102,9 +102,23 @@ fn quantities(r: &TraceResult) -> Vec<(String, f64)> {
 /// common practice, no source); and the exact part found mirror paths.
 #[test]
 fn next_event_agrees_with_detection_spheres() {
+    agrees_with_spheres(NextEventSettings::default());
+}
+
+/// The same without next-event scoring (exact mirror paths, stratified
+/// starts and the growing late sphere only).
+#[test]
+fn the_exact_paths_and_late_sphere_alone_agree_with_detection_spheres() {
+    agrees_with_spheres(NextEventSettings {
+        rain: false,
+        ..NextEventSettings::default()
+    });
+}
+
+fn agrees_with_spheres(settings: NextEventSettings) {
     let room = room();
     let sphere = batches(&room, Estimator::Sphere);
-    let ne = batches(&room, Estimator::NextEvent(NextEventSettings::default()));
+    let ne = batches(&room, Estimator::NextEvent(settings));
     let qs: Vec<Vec<(String, f64)>> = sphere.iter().map(quantities).collect();
     let qn: Vec<Vec<(String, f64)>> = ne.iter().map(quantities).collect();
     let mut worst = (0.0, String::new());

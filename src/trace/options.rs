@@ -103,6 +103,11 @@ pub struct NextEventSettings {
     pub late_radius_m: Option<f64>,
     /// Time after which the detection radius starts to grow, s.
     pub late_start_s: f64,
+    /// Whether reflections score receivers by next-event estimation; `false`
+    /// keeps sphere detection for every lobe, with the exact mirror paths,
+    /// stratified start directions and growing late sphere still on (their
+    /// cost is small; the next-event queries are what make a run slower).
+    pub rain: bool,
 }
 
 /// Highest image order the next-event estimator supports.
@@ -116,6 +121,7 @@ impl Default for NextEventSettings {
             pilot_capture_m: 2.0,
             late_radius_m: None,
             late_start_s: 0.1,
+            rain: true,
         }
     }
 }

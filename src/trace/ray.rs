@@ -65,6 +65,8 @@ pub(super) struct NextEventScene {
     pub exact_chains: Vec<HashSet<Chain>>,
     /// Highest order among them (0: none).
     pub image_order: usize,
+    /// Whether reflections score by next-event estimation.
+    pub rain: bool,
 }
 
 /// Salt that gives each ray a second stream for its next-event directions,
@@ -440,7 +442,7 @@ impl Scene<'_> {
         let u_lobe = ray.rng.uniform();
         let u_dir = ray.rng.uniform2();
         let law = &self.laws[shading.law as usize];
-        if let Some(ne) = self.next_event {
+        if let Some(ne) = self.next_event.filter(|ne| ne.rain) {
             let point = pos + dir * segment_m + frame.normal * SURFACE_OFFSET_M;
             self.rain(ne, ray, point, &frame, wo, law.as_ref(), arrivals);
         }
@@ -448,9 +450,9 @@ impl Scene<'_> {
             tally.absorbed_rays += 1;
             return false;
         };
-        if self.next_event.is_some() {
+        if let Some(ne) = self.next_event {
             // Density lobes were counted by next-event estimation above.
-            ray.counts = sample.pdf.is_none();
+            ray.counts = !ne.rain || sample.pdf.is_none();
             ray.chain = match sample.lobe {
                 Lobe::Mirror => ray.chain.and_then(|c| c.then(shading.surface)),
                 _ => None,

@@ -609,6 +609,7 @@ fn prepare_next_event(
             largest,
             exact_chains,
             image_order: settings.image_order,
+            rain: settings.rain,
         },
         paths,
     )
