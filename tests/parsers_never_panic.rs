@@ -92,6 +92,14 @@ fn damage(text: &str, edits: &[Edit]) -> String {
     s
 }
 
+/// Cases per parser: `POLARAY_FUZZ_CASES`, else 96.
+fn fuzz_cases() -> u32 {
+    std::env::var("POLARAY_FUZZ_CASES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(96)
+}
+
 fn repo(path: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(path)
 }
@@ -126,9 +134,10 @@ fn shipped(path: &str) -> String {
 
 proptest! {
     // A fixed seed, so CI meets the same damaged files every run; no
-    // regression files are written into the checkout.
+    // regression files are written into the checkout. The suite runs 96
+    // cases per parser; `POLARAY_FUZZ_CASES=N` runs N (the long run).
     #![proptest_config(ProptestConfig {
-        cases: 96,
+        cases: fuzz_cases(),
         rng_seed: RngSeed::Fixed(20261204),
         failure_persistence: None,
         ..ProptestConfig::default()

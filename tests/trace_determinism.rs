@@ -72,11 +72,25 @@ fn thread_count_does_not_change_a_bit() {
 
 #[test]
 fn next_event_estimator_is_thread_count_independent_too() {
-    let ne = trace::Estimator::NextEvent(trace::NextEventSettings::default());
-    let one = bits(&traced_with(1, 5, ne));
-    assert_eq!(one, bits(&traced_with(2, 5, ne)), "1 vs 2 threads");
-    assert_eq!(one, bits(&traced_with(3, 5, ne)), "1 vs 3 threads");
-    assert_ne!(one, bits(&traced(1, 5)), "the estimators differ");
+    // With next-event scoring (dense arrival logs) and without (sparse).
+    for rain in [true, false] {
+        let ne = trace::Estimator::NextEvent(trace::NextEventSettings {
+            rain,
+            ..trace::NextEventSettings::default()
+        });
+        let one = bits(&traced_with(1, 5, ne));
+        assert_eq!(
+            one,
+            bits(&traced_with(2, 5, ne)),
+            "1 vs 2 threads, rain {rain}"
+        );
+        assert_eq!(
+            one,
+            bits(&traced_with(3, 5, ne)),
+            "1 vs 3 threads, rain {rain}"
+        );
+        assert_ne!(one, bits(&traced(1, 5)), "the estimators differ");
+    }
 }
 
 #[test]

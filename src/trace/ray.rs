@@ -321,11 +321,16 @@ impl Scene<'_> {
         }
     }
 
-    /// An empty arrival log of the kind this scene's estimator needs.
+    /// An empty arrival log of the kind this scene's estimator needs: dense
+    /// echograms when next-event scoring adds an arrival per reflection and
+    /// receiver, the sparse list otherwise (a dense log per chunk costs more
+    /// to clear and merge than the few sphere crossings it would hold).
     pub fn new_arrival_log(&self) -> ArrivalLog {
         match self.next_event {
-            Some(_) => ArrivalLog::dense(self.lateral_axes.len(), self.bins, self.bin_s),
-            None => ArrivalLog::new(),
+            Some(ne) if ne.rain => {
+                ArrivalLog::dense(self.lateral_axes.len(), self.bins, self.bin_s)
+            }
+            _ => ArrivalLog::new(),
         }
     }
 
