@@ -20,7 +20,7 @@ use crate::receiver::Echogram;
 pub use crate::report::batches::ValueTable;
 use crate::report::batches::{delete_one_tables, parameters_with};
 use crate::report::PairParameters;
-use crate::trace::{self, mean_echogram};
+use crate::trace;
 
 /// One source–receiver pair of a run.
 #[derive(Clone, Debug)]
@@ -125,47 +125,40 @@ pub fn trace_run(
             source,
         }
     })?;
-    let Some(first) = batches.first() else {
+    let (Some(first), Some(pooled_run)) = (batches.first(), trace::pool(&batches)) else {
         return Err(CompareError::Trace {
             file: plan.file.clone(),
             run: run.id.clone(),
             source: crate::trace::TraceError::Option("no batch was traced".into()),
         });
     };
-    let mut stats = RunStats {
-        passes: first.stats.passes,
-        ..RunStats::default()
-    };
-    let mut warnings: Vec<String> = Vec::new();
     let four_v_over_s = crate::room::estimates::mean_free_path_m(room);
     let ratios: Vec<f64> = batches
         .iter()
         .filter_map(|r| r.stats.traced_mean_free_path_m)
         .map(|m| m / four_v_over_s)
         .collect();
-    stats.free_path_ratio = (!ratios.is_empty() && four_v_over_s > 0.0)
-        .then(|| ratios.iter().sum::<f64>() / ratios.len() as f64);
-    for r in &batches {
-        stats.rays += r.stats.rays;
-        stats.segments += r.stats.segments;
-        stats.reflections += r.stats.reflections;
-        stats.lost_rays += r.stats.lost_rays;
-        stats.roulette_stopped_rays += r.stats.roulette_stopped_rays;
-        stats.absorbed_rays += r.stats.absorbed_rays;
-        for w in &r.warnings {
-            if !warnings.contains(w) {
-                warnings.push(w.clone());
-            }
-        }
-    }
+    let s = &pooled_run.stats;
+    let stats = RunStats {
+        rays: s.rays,
+        passes: s.passes,
+        segments: s.segments,
+        reflections: s.reflections,
+        lost_rays: s.lost_rays,
+        roulette_stopped_rays: s.roulette_stopped_rays,
+        absorbed_rays: s.absorbed_rays,
+        // The mean of the batches' ratios (not of their paths), as recorded.
+        free_path_ratio: (!ratios.is_empty() && four_v_over_s > 0.0)
+            .then(|| ratios.iter().sum::<f64>() / ratios.len() as f64),
+    };
+    let warnings = pooled_run.warnings.clone();
 
     let pairs = first
         .echograms
         .iter()
         .enumerate()
         .map(|(k, pair)| {
-            let all: Vec<&Echogram> = batches.iter().map(|r| &r.echograms[k].echogram).collect();
-            let pooled_echogram = mean_echogram(&all, None);
+            let pooled_echogram = pooled_run.echograms[k].echogram.clone();
             let pooled = parameters_with(first, pair, &pooled_echogram);
             let delete_one = delete_one_tables(&batches, k);
             PairOutcome {
