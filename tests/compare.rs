@@ -7,6 +7,7 @@ use std::process::Command;
 use std::sync::OnceLock;
 
 use assert_cmd::cargo::cargo_bin;
+use polaray::metrics::Parameter;
 use serde_json::Value;
 
 const COMPARISON: &str = "tests/data/compare/treatments.compare.toml";
@@ -555,4 +556,67 @@ fn the_record_holds_no_absolute_path_and_reproduces_from_anywhere() {
         "{stdout}\n{}",
         String::from_utf8_lossy(&o.stderr)
     );
+}
+
+#[test]
+fn the_report_opens_with_a_summary_that_matches_the_verdicts() {
+    let out = shared_run();
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    let start = html
+        .find("<section id=\"summary\">")
+        .expect("summary section");
+    assert!(
+        start < html.find("Advisory results").unwrap()
+            && start < html.find("id=\"verdicts\"").unwrap(),
+        "the summary comes first"
+    );
+    let summary = &html[start..start + html[start..].find("</section>").unwrap()];
+    let doc = document(out);
+    // Every sensitive single-number verdict on the choice of treatment is
+    // named, and a parameter robust everywhere is said to hold.
+    let mut sensitive = 0;
+    let mut robust_everywhere = std::collections::BTreeMap::new();
+    for spread in doc["spreads"].as_array().unwrap() {
+        if spread["kind"] != "variants" {
+            continue;
+        }
+        for row in spread["rows"].as_array().unwrap() {
+            if !row["band_hz"].is_null() {
+                continue;
+            }
+            let p = Parameter::from_name(row["parameter"].as_str().unwrap()).unwrap();
+            let robust = row["verdict"] == "robust";
+            robust_everywhere
+                .entry(p.short())
+                .and_modify(|r: &mut bool| *r &= robust)
+                .or_insert(robust);
+            if row["verdict"] == "sensitive" {
+                let needle = format!("{} at {}", p.short(), row["receiver"].as_str().unwrap());
+                assert!(
+                    summary.contains(&needle),
+                    "{needle} missing from: {summary}"
+                );
+                sensitive += 1;
+            }
+        }
+    }
+    assert!(
+        sensitive > 0,
+        "the test comparison has sensitive verdicts (noise_factor 1)"
+    );
+    let holds = summary
+        .split("Does the choice of treatment change the result?")
+        .nth(1)
+        .unwrap()
+        .split("</li>")
+        .next()
+        .unwrap();
+    for (p, robust) in robust_everywhere {
+        if robust {
+            assert!(
+                holds.contains("holds for") && holds.contains(p),
+                "{p}: {holds}"
+            );
+        }
+    }
 }

@@ -14,6 +14,7 @@
 
 pub mod charts;
 mod page;
+mod summary;
 
 use crate::report::ReportError;
 use std::path::{Path, PathBuf};

@@ -131,8 +131,9 @@ pub(super) fn render(doc: &ComparisonDocument, charts: &[Chart], svgs: &[String]
         esc(&s.laws.join(", ")),
         esc(&doc.provenance.polaray_version)
     );
+    super::summary::summary(&mut h, doc, &esc);
     cautions(&mut h, doc);
-    h.push_str("<nav class=\"contents\"><a href=\"#reading\">How to read</a><a href=\"#verdicts\">Verdicts</a><a href=\"#receivers\">Receivers</a><a href=\"#surfaces\">Surfaces</a><a href=\"#provenance\">Provenance</a></nav>\n");
+    h.push_str("<nav class=\"contents\"><a href=\"#summary\">Summary</a><a href=\"#reading\">How to read</a><a href=\"#verdicts\">Verdicts</a><a href=\"#receivers\">Receivers</a><a href=\"#surfaces\">Surfaces</a><a href=\"#provenance\">Provenance</a></nav>\n");
     reading(&mut h, doc);
     verdicts(&mut h, doc);
     receivers(&mut h, doc, &styles, &svg_of);
