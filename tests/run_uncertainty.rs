@@ -76,7 +76,14 @@ fn jackknife_standard_errors_match_the_spread_over_seeds() {
     // so a factor of 1.6 either way would fail only by a gross error.
     let room = room();
     let slot = 2; // two bands, so slot 2 is the single-number value
-    let checked = [Parameter::Edt, Parameter::C80, Parameter::G, Parameter::D50];
+    let checked = [
+        Parameter::Edt,
+        Parameter::T30,
+        Parameter::C80,
+        Parameter::D50,
+        Parameter::Ts,
+        Parameter::G,
+    ];
     let mut values = vec![Vec::new(); checked.len()];
     let mut errors = vec![Vec::new(); checked.len()];
     for seed in 0..12 {
