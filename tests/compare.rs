@@ -604,6 +604,20 @@ fn the_report_opens_with_a_summary_that_matches_the_verdicts() {
         sensitive > 0,
         "the test comparison has sensitive verdicts (noise_factor 1)"
     );
+    // Verdict cells give the physical difference beside the JNDs, signed,
+    // in the parameter's unit ("B vs A: -0.12 s").
+    let cells: Vec<&str> = html
+        .split("<span class=\"vp\">")
+        .skip(1)
+        .map(|c| c.split("</span>").next().unwrap())
+        .collect();
+    assert!(
+        cells.iter().any(|c| c.contains(" vs ")
+            && (c.contains(": +") || c.contains(": -"))
+            && c.ends_with(" s")),
+        "{:?}",
+        &cells[..cells.len().min(5)]
+    );
     let holds = summary
         .split("Does the choice of treatment change the result?")
         .nth(1)

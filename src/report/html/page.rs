@@ -256,14 +256,21 @@ fn verdict_cell(doc: &ComparisonDocument, kind: SpreadKind, row: &SpreadRow) -> 
         (Some(s), None) => format!("S {s:.2} · N –"),
         _ => "S – · N –".into(),
     };
+    // The physical difference beside the JNDs: to − from, in the display unit.
+    let (scale, _) = p.display_unit();
+    let decimals = p.display_decimals();
+    let physical = d
+        .difference
+        .map_or_else(String::new, |x| format!(": {:+.decimals$}{u}", x * scale));
     format!(
-        "<td class=\"v v-{}\" title=\"{}\"><span class=\"vl\">{}</span><span class=\"vn\">{}</span><span class=\"vp\">{} vs {}</span></td>",
+        "<td class=\"v v-{}\" title=\"{}\"><span class=\"vl\">{}</span><span class=\"vn\">{}</span><span class=\"vp\">{} vs {}{}</span></td>",
         row.verdict.key(),
         esc(&title),
         esc(row.verdict.label()),
         numbers,
+        esc(&short_run(doc, &d.to, kind)),
         esc(&short_run(doc, &d.from, kind)),
-        esc(&short_run(doc, &d.to, kind))
+        esc(&physical)
     )
 }
 
