@@ -259,9 +259,15 @@ fn verdict_cell(doc: &ComparisonDocument, kind: SpreadKind, row: &SpreadRow) -> 
     // The physical difference beside the JNDs: to − from, in the display unit.
     let (scale, _) = p.display_unit();
     let decimals = p.display_decimals();
-    let physical = d
-        .difference
-        .map_or_else(String::new, |x| format!(": {:+.decimals$}{u}", x * scale));
+    let physical = d.difference.map_or_else(String::new, |x| {
+        let shown = x * scale;
+        // A difference that rounds to zero is shown unsigned ("0.00", not "-0.00").
+        if (shown * 10f64.powi(decimals as i32)).round() == 0.0 {
+            format!(": {:.decimals$}{u}", 0.0)
+        } else {
+            format!(": {shown:+.decimals$}{u}")
+        }
+    });
     format!(
         "<td class=\"v v-{}\" title=\"{}\"><span class=\"vl\">{}</span><span class=\"vn\">{}</span><span class=\"vp\">{} vs {}{}</span></td>",
         row.verdict.key(),
