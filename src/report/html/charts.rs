@@ -522,6 +522,14 @@ fn render_plane<DB: DrawingBackend>(
             anchored(12, HPos::Center, VPos::Bottom),
         )))
         .map_err(|e| e.to_string())?;
+    // Band labels never overlap: a label whose box would cover one already
+    // written is left out (its point stays), and the chart says how many.
+    let (w_px, h_px) = chart.plotting_area().dim_in_pixel();
+    let char_w = 6.5 / f64::from(w_px.max(1));
+    let line_h = 13.0 * 1.05 / f64::from(h_px.max(1));
+    let mut placed: Vec<[f64; 4]> = Vec::new();
+    let mut pending: Vec<(f64, f64, String)> = Vec::new();
+    let mut left_out = 0usize;
     for m in &c.materials {
         for &(s, lo, hi) in &m.envelope {
             chart
@@ -558,16 +566,43 @@ fn render_plane<DB: DrawingBackend>(
             }
         }
         if m.labelled {
-            for (s, d, label) in labels {
-                chart
-                    .draw_series(std::iter::once(Text::new(
-                        format!(" {label}"),
-                        (s, d),
-                        anchored(11, HPos::Left, VPos::Bottom),
-                    )))
-                    .map_err(|e| e.to_string())?;
-            }
+            pending.extend(labels);
         }
+    }
+    // Labels last, on a paper-coloured backing so later points do not hide them.
+    for (s, d, label) in pending {
+        let text = format!(" {label}");
+        let b = [s, s + char_w * text.chars().count() as f64, d, d + line_h];
+        let overlaps = placed
+            .iter()
+            .any(|p| b[0] < p[1] && p[0] < b[1] && b[2] < p[3] && p[2] < b[3]);
+        if overlaps {
+            left_out += 1;
+            continue;
+        }
+        placed.push(b);
+        chart
+            .draw_series(std::iter::once(Rectangle::new(
+                [(b[0] + 0.3 * char_w, b[2]), (b[1], b[3])],
+                PAPER.mix(0.85).filled(),
+            )))
+            .map_err(|e| e.to_string())?;
+        chart
+            .draw_series(std::iter::once(Text::new(
+                text,
+                (s, d),
+                anchored(11, HPos::Left, VPos::Bottom),
+            )))
+            .map_err(|e| e.to_string())?;
+    }
+    if left_out > 0 {
+        chart
+            .draw_series(std::iter::once(Text::new(
+                format!("{left_out} band labels left out where they would overlap; the surface table lists every band"),
+                (0.03, 0.91),
+                anchored(11, HPos::Left, VPos::Top),
+            )))
+            .map_err(|e| e.to_string())?;
     }
     Ok(())
 }
