@@ -17,8 +17,9 @@ use super::error::CompareError;
 use super::plan::{ComparisonPlan, RunSpec};
 use crate::metrics::{BandParameters, Parameter};
 use crate::receiver::Echogram;
+use crate::report::batches::delete_one_tables;
 pub use crate::report::batches::ValueTable;
-use crate::report::batches::{delete_one_tables, parameters_with};
+use crate::report::pair_parameters_with;
 use crate::report::PairParameters;
 use crate::trace;
 
@@ -159,7 +160,7 @@ pub fn trace_run(
         .enumerate()
         .map(|(k, pair)| {
             let pooled_echogram = pooled_run.echograms[k].echogram.clone();
-            let pooled = parameters_with(first, pair, &pooled_echogram);
+            let pooled = pair_parameters_with(first, pair, &pooled_echogram);
             let delete_one = delete_one_tables(&batches, k);
             PairOutcome {
                 source: first.sources[pair.source].name.clone(),

@@ -2,10 +2,10 @@
 //! tables of the delete-one pools, and the jackknife standard errors they
 //! give ([`crate::metrics::jackknife`]).
 
-use super::parameters::{pair_parameters, PairParameters};
+use super::parameters::{pair_parameters_with, PairParameters};
 use crate::metrics::{jackknife_se, Parameter};
 use crate::receiver::Echogram;
-use crate::trace::{mean_echogram, PairEchogram, TraceResult};
+use crate::trace::{mean_echogram, TraceResult};
 
 /// Values of every parameter of one pair: index `parameter · (bands + 1) + slot`,
 /// slot `0..bands` a band, slot `bands` the single-number value.
@@ -88,23 +88,11 @@ pub fn delete_one_tables(batches: &[TraceResult], pair: usize) -> Vec<ValueTable
         .collect();
     (0..all.len())
         .map(|skip| {
-            ValueTable::of(&parameters_with(
+            ValueTable::of(&pair_parameters_with(
                 first,
                 &first.echograms[pair],
                 &mean_echogram(&all, Some(skip)),
             ))
         })
         .collect()
-}
-
-/// ISO 3382-1 parameters of `pair` with its echogram replaced by `echogram`.
-#[must_use]
-pub fn parameters_with(
-    result: &TraceResult,
-    pair: &PairEchogram,
-    echogram: &Echogram,
-) -> PairParameters {
-    let mut p = pair.clone();
-    p.echogram = echogram.clone();
-    pair_parameters(result, &p)
 }

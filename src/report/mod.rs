@@ -17,8 +17,8 @@ use std::path::PathBuf;
 pub use csv::{column_prefix, echogram_csv, EchogramKind};
 pub use json::{result_json, BandReport, ReceiverReport, RunReport, ADVISORY};
 pub use parameters::{
-    decay_plot_file_name, pair_parameters, parameters_csv, run_parameters, write_decay_plot,
-    PairParameters, PARAMETERS_CSV_FILE, PARAMETERS_CSV_HEADER,
+    decay_plot_file_name, pair_parameters, pair_parameters_with, parameters_csv, run_parameters,
+    write_decay_plot, PairParameters, PARAMETERS_CSV_FILE, PARAMETERS_CSV_HEADER,
 };
 pub use plot::{plot_file_name, write_echogram_plot};
 

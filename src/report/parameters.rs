@@ -13,6 +13,7 @@ use std::path::Path;
 
 use super::batches::ValueTable;
 use crate::metrics::{self, Averages, BandParameters, DecayPanel, EchogramBand, Parameter};
+use crate::receiver::Echogram;
 use crate::trace::{PairEchogram, TraceResult};
 
 use super::{file_safe, ReportError};
@@ -54,8 +55,19 @@ impl PairParameters {
 /// with t = 0 at its direct-sound time d / c.
 #[must_use]
 pub fn pair_parameters(result: &TraceResult, pair: &PairEchogram) -> PairParameters {
+    pair_parameters_with(result, pair, &pair.echogram)
+}
+
+/// As [`pair_parameters`], from `echogram` in place of the pair's own (a
+/// pooled or delete-one echogram of a batched run), without copying either.
+#[must_use]
+pub fn pair_parameters_with(
+    result: &TraceResult,
+    pair: &PairEchogram,
+    echogram: &Echogram,
+) -> PairParameters {
     let centres = result.bands.centres_hz();
-    let e = &pair.echogram;
+    let e = echogram;
     let mut notes = Vec::new();
     if !pair.direct_visible {
         notes.push(format!(

@@ -101,20 +101,17 @@ pub(super) fn summary(h: &mut String, doc: &ComparisonDocument, esc: &dyn Fn(&st
         (
             SpreadKind::Variants,
             "Does the choice of treatment change the result?",
-            "more rays would tell",
         ),
         (
             SpreadKind::Laws,
             "Does it matter which scattering law is right?",
-            "more rays would tell",
         ),
         (
             SpreadKind::Envelope,
             "What do the surfaces known only by their scattering coefficient leave open?",
-            "more rays would tell",
         ),
     ];
-    for (kind, question, undecided_hint) in questions {
+    for (kind, question) in questions {
         let Some(a) = answer(doc, kind) else {
             continue;
         };
@@ -133,7 +130,7 @@ pub(super) fn summary(h: &mut String, doc: &ComparisonDocument, esc: &dyn Fn(&st
         }
         if !a.undecided.is_empty() {
             parts.push(format!(
-                "within noise for {} ({undecided_hint})",
+                "within noise for {} (more rays would tell)",
                 esc(&names(&a.undecided))
             ));
         }
