@@ -1,7 +1,7 @@
 //! Efficiency of the next-event estimator against detection spheres alone:
 //! 1 / (variance × time) per parameter, source–receiver pair and band, the
 //! new estimator's ÷ the sphere estimator's, both measured in the same run on
-//! the same rays (each estimator traces `BATCHES` independent batches; the
+//! the same rays (each estimator traces `ESTIMATOR_BATCHES` (default 20) independent batches; the
 //! variance is the spread between batches, the time is the wall time of all
 //! batches with the same thread count).
 //!
@@ -21,8 +21,18 @@ use polaray::report;
 use polaray::room::{self, Room};
 use polaray::trace::{self, Estimator, TraceOptions};
 
-/// Batches per estimator (the variance has BATCHES − 1 degrees of freedom).
-const BATCHES: usize = 20;
+/// Batches per estimator unless `ESTIMATOR_BATCHES` says otherwise (the
+/// variance has batches − 1 degrees of freedom).
+const DEFAULT_BATCHES: usize = 20;
+
+/// The batch count of this run.
+fn batches() -> usize {
+    std::env::var("ESTIMATOR_BATCHES")
+        .ok()
+        .map_or(DEFAULT_BATCHES, |v| {
+            v.parse().expect("ESTIMATOR_BATCHES: a whole number")
+        })
+}
 
 /// One case: a room file, a law and the rays per source of each batch.
 struct Case {
@@ -84,14 +94,18 @@ fn options(room: &Room, case: &Case, estimator: Estimator) -> TraceOptions {
     options.rays = case.rays;
     options.estimator = estimator;
     // The same detection radius for both estimators and every batch size.
-    options.receiver_radius_m = Some(0.5);
+    options.receiver_radius_m = Some(
+        std::env::var("ESTIMATOR_RADIUS_M")
+            .ok()
+            .map_or(0.5, |v| v.parse().expect("ESTIMATOR_RADIUS_M: metres")),
+    );
     options
 }
 
 /// Per (parameter, pair, band): the values of every batch; and the wall time, s.
 fn measure(room: &Room, options: &TraceOptions) -> (Vec<Vec<Vec<f64>>>, f64) {
     let started = Instant::now();
-    let results = trace::run_batches(room, options, BATCHES, &|_| {}).expect("trace");
+    let results = trace::run_batches(room, options, batches(), &|_| {}).expect("trace");
     let seconds = started.elapsed().as_secs_f64();
     let mut values = vec![Vec::new(); PARAMETERS.len()];
     for result in &results {
@@ -119,12 +133,42 @@ fn measure(room: &Room, options: &TraceOptions) -> (Vec<Vec<Vec<f64>>>, f64) {
 }
 
 fn variance(v: &[f64]) -> Option<f64> {
-    if v.len() < BATCHES {
+    if v.len() < batches() {
         return None; // undefined in some batch: not comparable
     }
     let n = v.len() as f64;
     let mean = v.iter().sum::<f64>() / n;
     Some(v.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1.0))
+}
+
+/// Prints the cells (pair × band, in result order) where the new estimator's
+/// efficiency is below 0.7 of the sphere's or the means differ by more than
+/// 3 combined standard errors (z), with both estimators' batch
+/// means, spreads and extremes, to find out why (`ESTIMATOR_DETAIL=1`).
+fn print_worse_cells(name: &str, sphere: &[Vec<f64>], ne: &[Vec<f64>], time_ratio: f64) {
+    for (cell, (a, b)) in sphere.iter().zip(ne).enumerate() {
+        let (Some(va), Some(vb)) = (variance(a), variance(b)) else {
+            continue;
+        };
+        let gain = va / vb * time_ratio;
+        let mean = |v: &[f64]| v.iter().sum::<f64>() / v.len() as f64;
+        let z = (mean(a) - mean(b)) / (va / a.len() as f64 + vb / b.len() as f64).sqrt();
+        if gain < 0.7 || z.abs() > 3.0 {
+            let describe = |v: &[f64], var: f64| {
+                let mean = v.iter().sum::<f64>() / v.len() as f64;
+                let lo = v.iter().copied().fold(f64::INFINITY, f64::min);
+                let hi = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+                format!("mean {mean:.4} sd {:.4} range {lo:.4}..{hi:.4}", var.sqrt())
+            };
+            println!(
+                "  {name} cell {cell} (pair {}, band {}): gain {gain:.2}, z {z:.1}; sphere {}; new {}",
+                cell / 6,
+                cell % 6,
+                describe(a, va),
+                describe(b, vb)
+            );
+        }
+    }
 }
 
 fn median(mut v: Vec<f64>) -> f64 {
@@ -142,7 +186,8 @@ fn median(mut v: Vec<f64>) -> f64 {
 
 fn summary() {
     println!(
-        "efficiency gain = (var × time)_sphere ÷ (var × time)_next-event, {BATCHES} batches each"
+        "efficiency gain = (var × time)_sphere ÷ (var × time)_next-event, {} batches each",
+        batches()
     );
     println!(
         "{:<20}{:>10}{:>10}  median [min] per parameter",
@@ -167,6 +212,9 @@ fn summary() {
                 })
                 .collect();
             let min = gains.iter().copied().fold(f64::INFINITY, f64::min);
+            if std::env::var_os("ESTIMATOR_DETAIL").is_some() {
+                print_worse_cells(name, &sphere[k], &ne[k], t_sphere / t_ne);
+            }
             line += &format!(" {name} {:.1} [{:.1}]", median(gains), min);
         }
         println!("{:<20}{t_sphere:>10.2}{t_ne:>10.2} {line}", case.label);

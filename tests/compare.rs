@@ -383,7 +383,7 @@ fn bad_comparison_files_are_refused_with_the_item_named() {
         ("batches = 1\n", "batches: 1 is too few"),
         (
             "estimator = \"cone\"\n",
-            "estimator: `cone` is not one of: sphere, next-event",
+            "estimator: `cone` is not one of: exact-early, next-event, sphere",
         ),
         (
             "receivers = [\"R9\"]\n",

@@ -131,6 +131,10 @@ fn batches_with_stream_offsets_partition_a_longer_run() {
     let n = 2 * trace::RAYS_PER_CHUNK;
     let mut options = TraceOptions::from_room(&room, LawKind::Split);
     options.duration_s = 0.4;
+    // Independent start directions (the exact-early estimator spreads each
+    // batch's start directions evenly, so its batches are not pieces of one
+    // longer run).
+    options.estimator = trace::Estimator::Sphere;
     // The default radius depends on the ray count; batches need a fixed one.
     options.receiver_radius_m = Some(0.5);
     options.rays = 2 * n;

@@ -33,6 +33,51 @@ fn room() -> Room {
     )
 }
 
+/// The same shoebox with every wall cut into coplanar square patches of
+/// `patch_m` (one surface each), as CAD exports walls: a receiver sphere then
+/// sees a mirror image through several patches, each its own mirror chain.
+fn patched_room(patch_m: f64) -> Room {
+    let template = room();
+    let size = DVec3::new(7.0, 5.0, 3.0);
+    let mut patched = common::empty_room(
+        "patched shoebox",
+        template.materials[0].clone(),
+        template.settings.clone(),
+    );
+    let centre = size * 0.5;
+    // Each wall: a corner, its two edge directions and lengths.
+    let walls = [
+        (DVec3::ZERO, DVec3::X * size.x, DVec3::Y * size.y),
+        (DVec3::Z * size.z, DVec3::X * size.x, DVec3::Y * size.y),
+        (DVec3::ZERO, DVec3::Y * size.y, DVec3::Z * size.z),
+        (DVec3::X * size.x, DVec3::Y * size.y, DVec3::Z * size.z),
+        (DVec3::ZERO, DVec3::X * size.x, DVec3::Z * size.z),
+        (DVec3::Y * size.y, DVec3::X * size.x, DVec3::Z * size.z),
+    ];
+    for (w, (corner, u, v)) in walls.into_iter().enumerate() {
+        let (nu, nv) = (
+            (u.length() / patch_m).round() as usize,
+            (v.length() / patch_m).round() as usize,
+        );
+        let (du, dv) = (u / nu as f64, v / nv as f64);
+        for i in 0..nu {
+            for j in 0..nv {
+                let a = corner + du * i as f64 + dv * j as f64;
+                common::add_polygon(
+                    &mut patched,
+                    &format!("wall {w} patch {i},{j}"),
+                    0,
+                    vec![a, a + du, a + du + dv, a + dv],
+                    centre,
+                );
+            }
+        }
+    }
+    patched.sources = template.sources.clone();
+    patched.receivers = template.receivers.clone();
+    patched
+}
+
 fn batches(room: &Room, estimator: Estimator) -> Vec<TraceResult> {
     let mut options = TraceOptions::from_room(room, LawKind::Split);
     options.rays = 2048;
@@ -115,10 +160,31 @@ fn the_exact_paths_and_late_sphere_alone_agree_with_detection_spheres() {
     });
 }
 
+/// Walls of many coplanar patches: a mirror image seen through several
+/// patches is several chains, valid at the receiver point for one of them.
+/// Evaluating only the chains valid at the point and leaving the others to
+/// the sphere counted the sphere's share of the neighbouring patches' beams
+/// on top of the point value (a selection by the point's own value): in the
+/// demo hall G came out about 0.5 dB high. Every candidate chain must be
+/// evaluated at the point, the invalid ones adding zero.
+#[test]
+fn the_exact_paths_agree_with_detection_spheres_on_patched_walls() {
+    agrees_with_spheres_in(
+        &patched_room(0.5),
+        NextEventSettings {
+            rain: false,
+            ..NextEventSettings::default()
+        },
+    );
+}
+
 fn agrees_with_spheres(settings: NextEventSettings) {
-    let room = room();
-    let sphere = batches(&room, Estimator::Sphere);
-    let ne = batches(&room, Estimator::NextEvent(settings));
+    agrees_with_spheres_in(&room(), settings);
+}
+
+fn agrees_with_spheres_in(room: &Room, settings: NextEventSettings) {
+    let sphere = batches(room, Estimator::Sphere);
+    let ne = batches(room, Estimator::NextEvent(settings));
     let qs: Vec<Vec<(String, f64)>> = sphere.iter().map(quantities).collect();
     let qn: Vec<Vec<(String, f64)>> = ne.iter().map(quantities).collect();
     let mut worst = (0.0, String::new());

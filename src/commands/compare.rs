@@ -35,8 +35,10 @@ pub struct Args {
     /// Seed, instead of the file's.
     #[arg(long, conflicts_with = "reproduce")]
     pub seed: Option<u64>,
-    /// Receiver estimator, instead of the file's: `sphere` (detection
-    /// spheres, the default) or `next-event` (experimental; see DEVELOPERS.md).
+    /// Receiver estimator, instead of the file's: `exact-early` (the
+    /// default: exact early mirror paths, stratified starts, a growing late
+    /// sphere), `next-event` (plus next-event scoring; slower) or `sphere`
+    /// (detection spheres only, the reference). See DEVELOPERS.md.
     #[arg(long, value_enum, conflicts_with = "reproduce")]
     pub estimator: Option<EstimatorChoice>,
     /// Re-run the comparison recorded in this comparison.json (its inputs
@@ -137,13 +139,14 @@ fn write_all(
 
 fn print_plan(plan: &ComparisonPlan) {
     outln!(
-        "{} · room {} · {} runs · {} rays per source in {} batches · seed {}",
+        "{} · room {} · {} runs · {} rays per source in {} batches · seed {} · estimator {}",
         plan.name,
         plan.room.name,
         plan.runs().len(),
         plan.rays_per_source,
         plan.batches,
-        plan.seed
+        plan.seed,
+        plan.estimator.name()
     );
     if let Some(note) = &plan.envelope_note {
         outln!("  no s-only envelope: {note}");

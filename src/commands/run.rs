@@ -38,11 +38,13 @@ pub struct Args {
     /// split evenly; 1 traces in one piece, without standard errors.
     #[arg(long, default_value_t = polaray::compare::plan::DEFAULT_BATCHES)]
     pub batches: usize,
-    /// How receivers collect the reflected sound: `sphere` (detection
-    /// spheres, the default) or `next-event` (experimental: next-event
-    /// estimation, exact early mirror paths, stratified start directions and
-    /// a late detection sphere that grows; see DEVELOPERS.md for its cost).
-    #[arg(long, default_value = "sphere", value_parser = ["sphere", "next-event"])]
+    /// How receivers collect the reflected sound: `exact-early` (the
+    /// default: early mirror paths evaluated exactly as image sources,
+    /// stratified start directions, a detection sphere that grows late in the
+    /// decay), `next-event` (the same plus next-event estimation at every
+    /// reflection; slower, see DEVELOPERS.md) or `sphere` (detection spheres
+    /// only, the reference).
+    #[arg(long, default_value = "exact-early", value_parser = polaray::trace::ESTIMATOR_NAMES)]
     pub estimator: String,
     /// Output folder (default: `<room name>-results`).
     #[arg(long)]
@@ -72,9 +74,8 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     if let Some(s) = args.seed {
         options.seed = s;
     }
-    if args.estimator == "next-event" {
-        options.estimator = trace::Estimator::NextEvent(trace::NextEventSettings::default());
-    }
+    options.estimator = trace::Estimator::from_name(&args.estimator)
+        .ok_or_else(|| anyhow::anyhow!("unknown estimator `{}`", args.estimator))?;
     let out = args
         .out
         .unwrap_or_else(|| PathBuf::from(format!("{}-results", report::file_safe(&room.name))));
@@ -166,12 +167,13 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
 fn print_summary(room: &room::Room, options: &TraceOptions, result: &TraceResult) {
     let s = &result.stats;
     outln!(
-        "{} · law {} · {} rays per source in {} batches · seed {}",
+        "{} · law {} · {} rays per source in {} batches · seed {} · estimator {}",
         room.name,
         options.law,
         options.rays,
         s.batches,
-        options.seed
+        options.seed,
+        options.estimator.name()
     );
     let volume = estimates::volume_m3(room);
     out!(

@@ -34,7 +34,7 @@ pub struct ComparisonFile {
     /// k: the noise band is ±k standard errors (default: the Student-t
     /// quantile with a Bonferroni allowance, see `verdict.rs`).
     pub noise_factor: Option<Real>,
-    /// Receiver estimator: `sphere` (default) or `next-event` (experimental).
+    /// Receiver estimator: `exact-early` (default), `next-event` or `sphere`.
     pub estimator: Option<String>,
     /// Band of the echogram and decay charts, Hz (default 1000).
     pub plot_band_hz: Option<u32>,

@@ -18,7 +18,7 @@ use crate::receiver::default_radius_m;
 use crate::room::file::RoomFile;
 use crate::room::inside::distance_to_triangle_m;
 use crate::room::{estimates, load_room, material_from_table, Material, Room};
-use crate::trace::{Estimator, NextEventSettings, Roulette, TraceOptions};
+use crate::trace::{Estimator, Roulette, TraceOptions};
 
 /// Batches when the comparison file gives none.
 pub const DEFAULT_BATCHES: usize = 20;
@@ -44,10 +44,13 @@ pub struct Overrides {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, serde::Deserialize, clap::ValueEnum)]
 #[serde(rename_all = "kebab-case")]
 pub enum EstimatorChoice {
+    /// Exact early mirror paths, stratified starts and a growing late sphere
+    /// (the default).
+    ExactEarly,
+    /// The same with next-event scoring at every reflection.
+    NextEvent,
     /// Detection spheres (the reference).
     Sphere,
-    /// The experimental next-event estimator with its default settings.
-    NextEvent,
 }
 
 impl EstimatorChoice {
@@ -55,8 +58,9 @@ impl EstimatorChoice {
     #[must_use]
     pub fn estimator(self) -> Estimator {
         match self {
+            Self::ExactEarly => Estimator::exact_early(),
+            Self::NextEvent => Estimator::next_event(),
             Self::Sphere => Estimator::Sphere,
-            Self::NextEvent => Estimator::NextEvent(NextEventSettings::default()),
         }
     }
 }
@@ -470,14 +474,14 @@ pub fn load_comparison(path: &Path, overrides: Overrides) -> Result<ComparisonPl
     }
     let estimator = match (overrides.estimator, spec.estimator.as_deref()) {
         (Some(choice), _) => choice.estimator(),
-        (None, None | Some("sphere")) => Estimator::Sphere,
-        (None, Some("next-event")) => Estimator::NextEvent(NextEventSettings::default()),
-        (None, Some(other)) => {
+        (None, None) => Estimator::default(),
+        (None, Some(name)) => Estimator::from_name(name).unwrap_or_else(|| {
             problems.add(format!(
-                "estimator: `{other}` is not one of: sphere, next-event"
+                "estimator: `{name}` is not one of: {}",
+                crate::trace::ESTIMATOR_NAMES.join(", ")
             ));
-            Estimator::Sphere
-        }
+            Estimator::default()
+        }),
     };
     let centres = room.settings.bands.centres_hz().to_vec();
     let plot_band_hz = spec

@@ -58,7 +58,7 @@ pub struct RoomReport {
 pub struct SettingsReport {
     /// Reflection law.
     pub law: String,
-    /// Receiver estimator and its settings (`kind`: `sphere` or `next-event`).
+    /// Receiver estimator and its settings (`kind`: `exact-early`, `next-event` or `sphere`).
     pub estimator: crate::trace::Estimator,
     /// Materials traced with the fallback law instead, with the reason.
     pub law_fallbacks: Vec<String>,

@@ -55,7 +55,8 @@ mod runner;
 mod specular;
 
 pub use options::{
-    Estimator, NextEventSettings, Roulette, TraceError, TraceOptions, MAX_IMAGE_ORDER,
+    Estimator, NextEventSettings, Roulette, TraceError, TraceOptions, ESTIMATOR_NAMES,
+    MAX_IMAGE_ORDER,
 };
 pub use pool::{mean_echogram, pool};
 pub use ray::{NoLog, QueryLog};

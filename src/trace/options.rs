@@ -53,34 +53,113 @@ pub struct TraceOptions {
 }
 
 /// How receivers collect the reflected sound (the direct sound is always exact).
-#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
-#[serde(tag = "kind", rename_all = "kebab-case")]
+#[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Estimator {
     /// Detection spheres only: a ray counts where it crosses a sphere (the
     /// reference estimator, kept for checks and studies).
     Sphere,
-    /// Next-event estimation at every reflection, exact early specular paths
-    /// and a detection sphere that grows late in the decay; see
-    /// [`NextEventSettings`] and the [module docs](super).
+    /// Exact early specular paths, stratified start directions and a
+    /// detection sphere that grows late in the decay, with next-event
+    /// estimation at every reflection when [`NextEventSettings::rain`] is
+    /// set; see the [module docs](super). Without next-event scoring this is
+    /// the default (`exact-early`).
     NextEvent(NextEventSettings),
 }
 
 impl Estimator {
-    /// The name used on the command line and in result files.
+    /// The default estimator: exact early mirror paths, stratified starts and
+    /// the growing late sphere, without next-event scoring (on the rooms
+    /// measured it is the most efficient; DEVELOPERS.md has the table).
+    #[must_use]
+    pub fn exact_early() -> Self {
+        Self::NextEvent(NextEventSettings {
+            rain: false,
+            ..NextEventSettings::default()
+        })
+    }
+
+    /// The same with next-event scoring at every reflection.
+    #[must_use]
+    pub fn next_event() -> Self {
+        Self::NextEvent(NextEventSettings::default())
+    }
+
+    /// The name used on the command line and in result files: `sphere`,
+    /// `exact-early` (no next-event scoring) or `next-event`.
     #[must_use]
     pub fn name(&self) -> &'static str {
         match self {
             Self::Sphere => "sphere",
+            Self::NextEvent(s) if !s.rain => "exact-early",
             Self::NextEvent(_) => "next-event",
+        }
+    }
+
+    /// One line for reports: the name and the settings that matter.
+    #[must_use]
+    pub fn describe(&self) -> String {
+        match self {
+            Self::Sphere => "sphere: detection spheres only".into(),
+            Self::NextEvent(s) => format!(
+                "{}: mirror paths to order {} evaluated exactly ({} pilot rays per source, \
+                 capture radius {} m), stratified start directions, detection sphere growing \
+                 from {} s to at most {} m{}",
+                self.name(),
+                s.image_order,
+                s.pilot_rays,
+                s.pilot_capture_m,
+                s.late_start_s,
+                s.late_radius_m.unwrap_or(super::AUTO_LATE_RADIUS_M),
+                if s.rain {
+                    ", next-event estimation at every reflection"
+                } else {
+                    ""
+                }
+            ),
+        }
+    }
+
+    /// The estimator of a name given by [`Self::name`], with default settings.
+    #[must_use]
+    pub fn from_name(name: &str) -> Option<Self> {
+        match name {
+            "sphere" => Some(Self::Sphere),
+            "exact-early" => Some(Self::exact_early()),
+            "next-event" => Some(Self::next_event()),
+            _ => None,
         }
     }
 }
 
+/// The estimator names [`Estimator::from_name`] knows, for messages.
+pub const ESTIMATOR_NAMES: [&str; 3] = ["exact-early", "next-event", "sphere"];
+
 impl Default for Estimator {
-    /// Detection spheres: on the rooms measured so far the next-event
-    /// estimator costs more time than it saves variance (DEVELOPERS.md).
+    /// [`Estimator::exact_early`].
     fn default() -> Self {
-        Self::Sphere
+        Self::exact_early()
+    }
+}
+
+/// Written as `{"kind": <name>, ...settings}` so that a result file names
+/// the estimator as the command line does.
+impl serde::Serialize for Estimator {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        #[derive(serde::Serialize)]
+        struct Named<'a> {
+            kind: &'a str,
+            #[serde(flatten)]
+            settings: Option<&'a NextEventSettings>,
+        }
+        let settings = match self {
+            Self::Sphere => None,
+            Self::NextEvent(s) => Some(s),
+        };
+        Named {
+            kind: self.name(),
+            settings,
+        }
+        .serialize(serializer)
     }
 }
 

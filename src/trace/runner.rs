@@ -594,13 +594,17 @@ fn prepare_next_event(
     for (pair, chains) in candidates.into_iter().enumerate() {
         let (s, r) = (pair / receivers.len(), pair % receivers.len());
         let valid: Vec<(Chain, SpecularPath)> = chains
-            .into_iter()
+            .iter()
             .filter_map(|c| {
-                specular::trace_path(room, bvh, &frames, source_points[s], receiver_points[r], &c)
-                    .map(|p| (c, p))
+                specular::trace_path(room, bvh, &frames, source_points[s], receiver_points[r], c)
+                    .map(|p| (*c, p))
             })
             .collect();
-        exact_chains.push(valid.iter().map(|(c, _)| *c).collect());
+        // Every candidate, valid at the receiver point or not, is evaluated
+        // at the point (an invalid chain adds zero there); keeping only the
+        // valid ones would be a selection by the point's own value and count
+        // the invalid chains' beams through the sphere on top.
+        exact_chains.push(chains.into_iter().collect());
         paths.push(valid);
     }
     (

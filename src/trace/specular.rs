@@ -17,9 +17,16 @@
 //!   surface's own law at its own incidence angle.
 //! - **No double counting.** A traced ray whose reflections so far were all
 //!   mirror lobes, along a chain that is a candidate of the pair, does not
-//!   count that receiver's sphere: its expected contribution is exactly what
-//!   the chain's image source adds (the mirror lobe is chosen with the
-//!   probability its weight divides by). Chains that are not candidates keep
+//!   count that receiver's sphere: its expected contribution is what the
+//!   chain's image source adds (the mirror lobe is chosen with the
+//!   probability its weight divides by), up to the difference between the
+//!   point and the sphere's mean. This holds for every candidate, valid at
+//!   the receiver point or not: an invalid chain adds zero at the point.
+//!   Skipping only the valid ones would select chains by the point's own
+//!   value and add the sphere's share of the invalid ones' beams on top
+//!   (a wall cut into patches shows one image through several patches; in
+//!   the demo hall G came out about 0.5 dB high that way, see
+//!   `tests/trace_next_event.rs`). Chains that are not candidates keep
 //!   sphere detection. The candidate set comes from independent rays, so it
 //!   is a fixed set as far as the traced rays are concerned, and the sum stays
 //!   unbiased whatever pilot rays found or missed; missing a chain only costs

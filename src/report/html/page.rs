@@ -121,7 +121,7 @@ pub(super) fn render(doc: &ComparisonDocument, charts: &[Chart], svgs: &[String]
     );
     let _ = write!(
         h,
-        "<header class=\"masthead\"><p class=\"kicker\">polaray · comparison of scattering treatments</p><h1>{}</h1><p class=\"meta\">room {} · {} runs · {} rays per source in {} batches · seed {} · laws {} · polaray {}</p></header>\n<main>\n",
+        "<header class=\"masthead\"><p class=\"kicker\">polaray · comparison of scattering treatments</p><h1>{}</h1><p class=\"meta\">room {} · {} runs · {} rays per source in {} batches · seed {} · laws {} · estimator {} · polaray {}</p></header>\n<main>\n",
         esc(&doc.name),
         esc(&s.room),
         doc.runs.len(),
@@ -129,6 +129,7 @@ pub(super) fn render(doc: &ComparisonDocument, charts: &[Chart], svgs: &[String]
         s.batches,
         s.seed,
         esc(&s.laws.join(", ")),
+        s.estimator.name(),
         esc(&doc.provenance.polaray_version)
     );
     super::summary::summary(&mut h, doc, &esc);
@@ -696,6 +697,7 @@ fn provenance(h: &mut String, doc: &ComparisonDocument) {
                 .join("; "),
         ),
         ("noise factor k", s.noise_factor.to_string()),
+        ("receiver estimator", s.estimator.describe()),
     ];
     for (k, v) in rows {
         let _ = write!(h, "<tr><th>{}</th><td>{}</td></tr>", esc(k), esc(&v));
