@@ -45,16 +45,10 @@ fn patched_room(patch_m: f64) -> Room {
         template.settings.clone(),
     );
     let centre = size * 0.5;
-    // Each wall: a corner, its two edge directions and lengths.
-    let walls = [
-        (DVec3::ZERO, DVec3::X * size.x, DVec3::Y * size.y),
-        (DVec3::Z * size.z, DVec3::X * size.x, DVec3::Y * size.y),
-        (DVec3::ZERO, DVec3::Y * size.y, DVec3::Z * size.z),
-        (DVec3::X * size.x, DVec3::Y * size.y, DVec3::Z * size.z),
-        (DVec3::ZERO, DVec3::X * size.x, DVec3::Z * size.z),
-        (DVec3::Y * size.y, DVec3::X * size.x, DVec3::Z * size.z),
-    ];
-    for (w, (corner, u, v)) in walls.into_iter().enumerate() {
+    // Each wall of the template is a quad v0 v1 v2 v3: cut it along its edges.
+    for (w, wall) in template.surfaces.iter().enumerate() {
+        let [corner, next, _, last] = [0, 1, 2, 3].map(|k| wall.vertices[k]);
+        let (u, v) = (next - corner, last - corner);
         let (nu, nv) = (
             (u.length() / patch_m).round() as usize,
             (v.length() / patch_m).round() as usize,
