@@ -308,3 +308,63 @@ fn an_unusable_material_goniometer_is_named() {
         ],
     );
 }
+
+/// A diffusion coefficient below the least even response the bounded law
+/// can give for its s (0.110 at s = 0.05 on the standard 37-receiver arc with
+/// 5 zone receivers, `src/law/bounded.rs`) is raised by `run --law bounded`;
+/// `check` says so in the same words, so the two never disagree.
+#[test]
+fn check_warns_where_the_bounded_law_would_change_the_diffusion_data() {
+    let dir = tempfile::tempdir().unwrap();
+    let room = dir.path().join("low-d.toml");
+    std::fs::write(
+        &room,
+        r#"name = "low d"
+[settings]
+bands_hz = [500, 1000]
+rays = 2000
+[materials.wall]
+absorption = [0.1, 0.1]
+scattering = [0.05, 0.05]
+diffusion = [0.02, 0.12]
+[box]
+size_m = [6.0, 5.0, 3.0]
+floor = "wall"
+ceiling = "wall"
+walls = "wall"
+[[sources]]
+name = "S1"
+position = [1.0, 1.0, 1.5]
+[[receivers]]
+name = "R1"
+position = [4.0, 3.0, 1.2]
+"#,
+    )
+    .unwrap();
+    let checked = Command::cargo_bin("polaray")
+        .unwrap()
+        .args(["check", room.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert!(checked.status.success());
+    let text = String::from_utf8_lossy(&checked.stdout);
+    let ran = Command::cargo_bin("polaray")
+        .unwrap()
+        .args(["run", room.to_str().unwrap(), "--law", "bounded", "--quiet"])
+        .arg("--out")
+        .arg(dir.path().join("res"))
+        .output()
+        .unwrap();
+    assert!(ran.status.success());
+    let run_warnings = String::from_utf8_lossy(&ran.stderr);
+    let adjustment = run_warnings
+        .lines()
+        .find(|l| l.contains("the bounded law uses d = 0.110"))
+        .unwrap_or_else(|| panic!("run did not warn: {run_warnings}"));
+    let words = adjustment.trim_start_matches("warning: ");
+    assert!(
+        text.contains(&format!("under `--law bounded`: {words}")),
+        "check does not say what run says ({words}):\n{text}"
+    );
+    assert!(!text.contains("1000 Hz: s = 0.050, d = 0.120"), "{text}");
+}

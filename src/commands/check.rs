@@ -70,6 +70,27 @@ struct RoomSummary {
     receivers: Vec<Placement>,
 }
 
+/// What `run --law bounded` would change in each material's diffusion data
+/// (the same law construction, so `check` and `run` say the same): a d
+/// below the least even response the law gives for its s is raised, one
+/// just above what it can reach is lowered. Materials without diffusion
+/// data have nothing to adjust; data the law refuses are already problems.
+fn bounded_law_adjustments(room: &polaray::room::Room) -> Vec<String> {
+    let bands = &room.settings.bands;
+    let all: Vec<usize> = (0..bands.len()).collect();
+    room.materials
+        .iter()
+        .filter(|m| m.diffusion.is_some())
+        .filter_map(|m| {
+            polaray::law::LawKind::Bounded
+                .build(m, bands, &all, false)
+                .ok()
+        })
+        .flat_map(|(_, warnings)| warnings)
+        .map(|w| format!("under `--law bounded`: {w}"))
+        .collect()
+}
+
 fn summarize(loaded: &LoadedRoom) -> RoomSummary {
     let room = &loaded.room;
     let n = room.settings.bands.len();
@@ -152,11 +173,13 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     let file = args.room.display().to_string();
     match load_room(&args.room) {
         Ok(loaded) => {
+            let mut warnings = loaded.warnings.clone();
+            warnings.extend(bounded_law_adjustments(&loaded.room));
             let report = Report {
                 file,
                 ok: true,
                 room: Some(summarize(&loaded)),
-                warnings: loaded.warnings,
+                warnings,
                 problems: Vec::new(),
             };
             if args.json {
