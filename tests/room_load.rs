@@ -260,3 +260,83 @@ fn obstacle_inside_a_closed_room_is_oriented_and_excluded() {
         err.problems
     );
 }
+
+/// 1D diffusers on mesh and box faces: `[mesh].profile_axes` by usemtl or
+/// group name (one warning per entry, not per face, when the axis leaves a
+/// face's plane), `[box].profile_axes` by face; unknown names are problems.
+#[test]
+fn profile_axes_of_mesh_groups_and_box_faces() {
+    let dir = tempfile::tempdir().unwrap();
+    let obj = "\
+v 0 0 0\nv 4 0 0\nv 4 3 0\nv 0 3 0\nv 0 0 2.5\nv 4 0 2.5\nv 4 3 2.5\nv 0 3 2.5
+g Floor
+f 1 2 3 4
+g Top
+usemtl Soft
+f 5 8 7 6
+g Walls
+usemtl Hard
+f 1 5 6 2
+f 2 6 7 3
+f 3 7 8 4
+f 4 8 5 1
+";
+    std::fs::write(dir.path().join("box.obj"), obj).unwrap();
+    let mesh = |axes: &str| {
+        format!(
+            "{MATERIALS}\n[mesh]\nfile = \"box.obj\"\nmaterials = {{ Floor = \"plaster\", Soft = \"panel\", Hard = \"plaster\" }}\nprofile_axes = {{ {axes} }}\n{PLACEMENTS}"
+        )
+    };
+    // Vertical ribs on the four walls (group Walls); the axis lies in every wall.
+    let loaded = load_text(dir.path(), "mesh.toml", &mesh("Walls = [0, 0, 2]")).unwrap();
+    let room = &loaded.room;
+    for s in &room.surfaces {
+        if s.group == "Walls" {
+            assert_eq!(s.profile_axis, Some(DVec3::Z), "{}", s.label);
+        } else {
+            assert_eq!(s.profile_axis, None, "{}", s.label);
+        }
+    }
+    assert!(
+        !loaded.warnings.iter().any(|w| w.contains("profile_axes")),
+        "{:?}",
+        loaded.warnings
+    );
+    // Along x: in the plane of two walls, not of the other two: one warning.
+    let loaded = load_text(dir.path(), "mesh2.toml", &mesh("Hard = [1, 0, 0]")).unwrap();
+    let notes: Vec<&String> = loaded
+        .warnings
+        .iter()
+        .filter(|w| w.contains("mesh.profile_axes.Hard"))
+        .collect();
+    assert_eq!(notes.len(), 1, "{:?}", loaded.warnings);
+    assert!(notes[0].contains("2 of its 4 faces"), "{}", notes[0]);
+    // A name no face has, and a zero axis: problems naming the entry.
+    let err =
+        load_text(dir.path(), "mesh3.toml", &mesh("Nowhere = [0, 0, 1]")).expect_err("refused");
+    assert!(
+        format!("{err}").contains("mesh.profile_axes.Nowhere"),
+        "{err}"
+    );
+    let err = load_text(dir.path(), "mesh4.toml", &mesh("Walls = [0, 0, 0]")).expect_err("refused");
+    assert!(format!("{err}").contains("non-zero"), "{err}");
+
+    // The box: ribs along z on the wall at y = size.
+    let boxed = |axes: &str| {
+        format!(
+            "{MATERIALS}\n[box]\nsize_m = [4, 3, 2.5]\nfloor = \"plaster\"\nceiling = \"plaster\"\nwalls = \"plaster\"\ny1 = \"panel\"\nprofile_axes = {{ {axes} }}\n{PLACEMENTS}"
+        )
+    };
+    let room = load_text(dir.path(), "box.toml", &boxed("y1 = [0, 0, 1]"))
+        .unwrap()
+        .room;
+    for s in &room.surfaces {
+        let expected = (s.group == "y1").then_some(DVec3::Z);
+        assert_eq!(s.profile_axis, expected, "{}", s.label);
+    }
+    let err = load_text(dir.path(), "box2.toml", &boxed("rear = [0, 0, 1]")).expect_err("refused");
+    assert!(
+        format!("{err}").contains("box.profile_axes: `rear` is not a face"),
+        "{err}"
+    );
+}

@@ -180,6 +180,10 @@ pub struct BoxFile {
     /// Faces left out (extension for open models), e.g. `["y1"]`.
     #[serde(default)]
     pub omit: Vec<String>,
+    /// Extrusion axis of a 1D diffuser profile per face, e.g.
+    /// `{ y1 = [0, 0, 1] }` (the profile varies across it).
+    #[serde(default)]
+    pub profile_axes: BTreeMap<String, Point>,
 }
 
 /// `[mesh]`.
@@ -191,6 +195,10 @@ pub struct MeshFile {
     /// OBJ material (usemtl) or group name → room material.
     #[serde(default)]
     pub materials: BTreeMap<String, String>,
+    /// OBJ material (usemtl) or group name → extrusion axis of a 1D diffuser
+    /// profile on those faces, e.g. `{ RearWall = [0, 0, 1] }`.
+    #[serde(default)]
+    pub profile_axes: BTreeMap<String, Point>,
 }
 
 /// `[[sources]]`.

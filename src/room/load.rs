@@ -77,6 +77,7 @@ pub fn load_room(path: &Path) -> Result<LoadedRoom, RoomError> {
             vertices: s.vertices.iter().map(point).collect(),
             group: s.group.clone().unwrap_or_else(|| s.material.clone()),
             profile_axis,
+            axis_from: None,
         });
     }
     if let Some(bx) = &file.shoebox {
@@ -186,6 +187,9 @@ struct RawSurface {
     vertices: Vec<DVec3>,
     group: String,
     profile_axis: Option<DVec3>,
+    /// Where a profile axis shared by many faces was given
+    /// (`mesh.profile_axes.RearWall`), so its warnings come once per entry.
+    axis_from: Option<String>,
 }
 
 #[derive(Default)]
@@ -451,6 +455,13 @@ impl Builder {
                 ));
             }
         }
+        for key in bx.profile_axes.keys() {
+            if !FACES.contains(&key.as_str()) {
+                self.problem(format!(
+                    "box.profile_axes: `{key}` is not a face; use floor, ceiling, x0, x1, y0 or y1"
+                ));
+            }
+        }
         let c = |x: f64, y: f64, z: f64| o + DVec3::new(x, y, z) * size;
         let faces: [(&str, Option<&String>, [DVec3; 4]); 6] = [
             (
@@ -507,7 +518,8 @@ impl Builder {
                 material: index,
                 vertices: vertices.to_vec(),
                 group: face.to_string(),
-                profile_axis: None,
+                profile_axis: bx.profile_axes.get(face).map(point),
+                axis_from: None,
             });
         }
     }
@@ -562,6 +574,7 @@ impl Builder {
             mapped.insert(key.as_str(), index);
         }
         let mut used_keys: BTreeSet<&str> = BTreeSet::new();
+        let mut axis_keys_used: BTreeSet<String> = BTreeSet::new();
         let mut unmapped: BTreeMap<String, usize> = BTreeMap::new();
         for (k, face) in parsed.faces.iter().enumerate() {
             let candidates = [face.material.as_deref(), face.group.as_deref()];
@@ -591,13 +604,29 @@ impl Builder {
                     None
                 }
             };
+            let axis_key = candidates
+                .into_iter()
+                .flatten()
+                .find(|n| mesh.profile_axes.contains_key(*n));
+            if let Some(k) = axis_key {
+                axis_keys_used.insert(k.to_string());
+            }
             raw.push(RawSurface {
                 label,
                 material,
                 vertices: face.vertices.iter().map(|&i| parsed.vertices[i]).collect(),
                 group,
-                profile_axis: None,
+                profile_axis: axis_key.map(|k| point(&mesh.profile_axes[k])),
+                axis_from: axis_key.map(|k| format!("mesh.profile_axes.{k}")),
             });
+        }
+        for key in mesh.profile_axes.keys() {
+            if !axis_keys_used.contains(key) {
+                self.problem(format!(
+                    "mesh.profile_axes.{key}: no face of {} has usemtl or group `{key}`",
+                    mesh.file
+                ));
+            }
         }
         for (name, line) in unmapped {
             if name.is_empty() {
@@ -702,6 +731,8 @@ impl Builder {
 
         let reverse: BTreeSet<usize> = topo.reverse.iter().copied().collect();
         let mut surfaces = Vec::with_capacity(raw.len());
+        // Shared axes (mesh.profile_axes): faces out of plane, faces in all.
+        let mut shared_axis_faces: BTreeMap<String, (usize, usize, bool)> = BTreeMap::new();
         let mut triangles = Vec::new();
         for (i, s) in raw.into_iter().enumerate() {
             let mut vertices = s.vertices;
@@ -719,16 +750,23 @@ impl Builder {
             }));
             let profile_axis = s.profile_axis.and_then(|a| {
                 let axis = a.try_normalize();
-                match axis {
-                    None => self.problem(format!(
+                let out_of_plane = axis.is_some_and(|u| u.dot(normal).abs() > 0.01);
+                match (&s.axis_from, axis) {
+                    (Some(from), _) => {
+                        let counts = shared_axis_faces.entry(from.clone()).or_default();
+                        counts.0 += usize::from(out_of_plane);
+                        counts.1 += 1;
+                        counts.2 |= axis.is_none();
+                    }
+                    (None, None) => self.problem(format!(
                         "{}: profile_axis must be a non-zero direction",
                         s.label
                     )),
-                    Some(u) if u.dot(normal).abs() > 0.01 => self.warn(format!(
+                    (None, Some(_)) if out_of_plane => self.warn(format!(
                         "{}: profile_axis is not in the surface's plane; its projection is used",
                         s.label
                     )),
-                    Some(_) => {}
+                    (None, Some(_)) => {}
                 }
                 axis
             });
@@ -741,6 +779,16 @@ impl Builder {
                 profile_axis,
                 group: s.group,
             });
+        }
+        for (from, (out_of_plane, faces, zero)) in shared_axis_faces {
+            if zero {
+                self.problem(format!("{from}: the axis must be a non-zero direction"));
+            } else if out_of_plane > 0 {
+                self.warn(format!(
+                    "{from}: the axis is not in the plane of {out_of_plane} of its {faces} faces; \
+                     on those its projection is used"
+                ));
+            }
         }
         if self.closed && !surfaces.is_empty() {
             let tri_points: Vec<[DVec3; 3]> = triangles.iter().map(|t| t.vertices).collect();
