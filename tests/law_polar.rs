@@ -745,3 +745,41 @@ fn geometric_zone_follows_the_image_source() {
     // 20° keeps its own level.
     assert!((g(20.0) / e(22) - ratio_15).abs() < 1e-9 * ratio_15);
 }
+
+/// At s = 0 in every band the polar law's mirror part (taken from the
+/// material's s) carries all the energy, so its polar data are never used:
+/// the factory says so once and traces the split law, instead of warning
+/// about data it does not use. With s > 0 in any band the data are used.
+#[test]
+fn at_zero_scattering_the_polar_data_are_not_used_and_the_report_says_so() {
+    use polaray::law::LawKind;
+    let bands = BandSet::new(&OCTAVES).unwrap();
+    let all: Vec<usize> = (0..OCTAVES.len()).collect();
+    let mut m = material(&ALPHA6, &[0.0; 6]);
+    m.polar_file = Some(data("plane_octave.toml"));
+    let (law, warnings) = LawKind::Polar.build(&m, &bands, &all, true).unwrap();
+    assert_eq!(warnings.len(), 1, "{warnings:?}");
+    assert!(
+        warnings[0].contains("is not used") && warnings[0].contains("plane_octave.toml"),
+        "{}",
+        warnings[0]
+    );
+    // All energy by the mirror: 1 − α per band (every incidence).
+    for theta in [0.0, 30.0, 70.0] {
+        let f = law.mirror_fraction(dir(theta, 20.0));
+        for b in 0..OCTAVES.len() {
+            assert!(
+                (f[b] - (1.0 - ALPHA6[b])).abs() < 1e-15,
+                "{theta}° band {b}"
+            );
+        }
+    }
+    let mut s = [0.0; 6];
+    s[3] = 0.2;
+    m.scattering = Bands::from_slice(&s);
+    let (_, warnings) = LawKind::Polar.build(&m, &bands, &all, true).unwrap();
+    assert!(
+        !warnings.iter().any(|w| w.contains("is not used")),
+        "{warnings:?}"
+    );
+}

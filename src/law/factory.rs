@@ -270,6 +270,19 @@ impl LawKind {
                     reason,
                 };
                 let data = load_polar_file(file).map_err(|e| bad(e.to_string()))?;
+                // The polar law takes its mirror part from the material's s:
+                // at s = 0 everything leaves by the mirror and the data are
+                // never used. Say so, instead of warning about the data.
+                if active.iter().all(|&b| material.scattering[b] == 0.0) {
+                    let note = format!(
+                        "material `{}`: s = 0 in every band traced, so under the polar law all \
+                         its energy leaves by the mirror direction and {file} is not used; it \
+                         traces exactly as under `split`",
+                        material.name,
+                        file = file.display()
+                    );
+                    return Ok((Box::new(SplitLaw::for_bands(material, active)), vec![note]));
+                }
                 let (law, warnings) =
                     MeasuredPolarLaw::for_bands(material, bands, active, &data, file, extruded)
                         .map_err(|e| bad(e.to_string()))?;
