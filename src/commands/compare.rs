@@ -108,7 +108,8 @@ pub fn run(args: Args) -> anyhow::Result<ExitCode> {
     let (doc, outcomes) = compare::run_comparison(&plan, Some(&out), &progress)
         .with_context(|| format!("{}: comparison failed", file.display()))?;
     progress.0.finish_and_clear();
-    for w in doc.warnings.iter().skip(plan.warnings.len()) {
+    let traced = &doc.warnings[plan.warnings.len().min(doc.warnings.len())..];
+    for w in report::grouped_warnings::group_by_band(traced) {
         eprintln!("warning: {w}");
     }
     let written = write_all(&out, &doc, &outcomes)?;

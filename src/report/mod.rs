@@ -6,6 +6,7 @@
 
 pub mod batches;
 mod csv;
+pub mod grouped_warnings;
 pub mod html;
 mod json;
 mod parameters;

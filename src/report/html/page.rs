@@ -726,7 +726,7 @@ fn provenance(h: &mut String, doc: &ComparisonDocument) {
     h.push_str("</table>");
     if !doc.warnings.is_empty() {
         h.push_str("<h3>Warnings</h3><ul>");
-        for w in &doc.warnings {
+        for w in &crate::report::grouped_warnings::group_by_band(&doc.warnings) {
             let _ = write!(h, "<li>{}</li>", esc(w));
         }
         h.push_str("</ul>");
