@@ -28,6 +28,23 @@ name = "R1"
 position = [3, 2, 1.2]
 "#;
 
+/// A 4 x 3 x 2.5 m box as OBJ: the floor has no usemtl (group Floor), the top
+/// usemtl Soft (group Top), the four walls usemtl Hard (group Walls).
+const BOX_OBJ: &str = "\
+v 0 0 0\nv 4 0 0\nv 4 3 0\nv 0 3 0\nv 0 0 2.5\nv 4 0 2.5\nv 4 3 2.5\nv 0 3 2.5
+g Floor
+f 1 2 3 4
+g Top
+usemtl Soft
+f 5 8 7 6
+g Walls
+usemtl Hard
+f 1 5 6 2
+f 2 6 7 3
+f 3 7 8 4
+f 4 8 5 1
+";
+
 fn load_text(dir: &Path, name: &str, text: &str) -> Result<LoadedRoom, RoomError> {
     let path = dir.join(name);
     std::fs::write(&path, text).unwrap();
@@ -123,22 +140,8 @@ fn missing_box_material_and_bad_omit_are_named() {
 #[test]
 fn obj_faces_map_by_usemtl_then_group_and_get_labels() {
     let dir = tempfile::tempdir().unwrap();
-    // A 4 x 3 x 2.5 m box; the floor has no usemtl and maps by its group name.
-    let obj = "\
-v 0 0 0\nv 4 0 0\nv 4 3 0\nv 0 3 0\nv 0 0 2.5\nv 4 0 2.5\nv 4 3 2.5\nv 0 3 2.5
-g Floor
-f 1 2 3 4
-g Top
-usemtl Soft
-f 5 8 7 6
-g Walls
-usemtl Hard
-f 1 5 6 2
-f 2 6 7 3
-f 3 7 8 4
-f 4 8 5 1
-";
-    std::fs::write(dir.path().join("box.obj"), obj).unwrap();
+    // The floor has no usemtl and maps by its group name.
+    std::fs::write(dir.path().join("box.obj"), BOX_OBJ).unwrap();
     let text = format!(
         "{MATERIALS}\n[mesh]\nfile = \"box.obj\"\nmaterials = {{ Floor = \"plaster\", Soft = \"panel\", Hard = \"plaster\", Walls = \"panel\" }}\n{PLACEMENTS}"
     );
@@ -267,21 +270,7 @@ fn obstacle_inside_a_closed_room_is_oriented_and_excluded() {
 #[test]
 fn profile_axes_of_mesh_groups_and_box_faces() {
     let dir = tempfile::tempdir().unwrap();
-    let obj = "\
-v 0 0 0\nv 4 0 0\nv 4 3 0\nv 0 3 0\nv 0 0 2.5\nv 4 0 2.5\nv 4 3 2.5\nv 0 3 2.5
-g Floor
-f 1 2 3 4
-g Top
-usemtl Soft
-f 5 8 7 6
-g Walls
-usemtl Hard
-f 1 5 6 2
-f 2 6 7 3
-f 3 7 8 4
-f 4 8 5 1
-";
-    std::fs::write(dir.path().join("box.obj"), obj).unwrap();
+    std::fs::write(dir.path().join("box.obj"), BOX_OBJ).unwrap();
     let mesh = |axes: &str| {
         format!(
             "{MATERIALS}\n[mesh]\nfile = \"box.obj\"\nmaterials = {{ Floor = \"plaster\", Soft = \"panel\", Hard = \"plaster\" }}\nprofile_axes = {{ {axes} }}\n{PLACEMENTS}"
